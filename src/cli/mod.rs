@@ -1,0 +1,90 @@
+//! The command line: `plumbline [PATH]` opens the window; subcommands work
+//! headless. Errors become one `error:` line on stderr and exit code 2.
+
+mod tree;
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+use std::sync::atomic::AtomicBool;
+
+use clap::{Parser, Subcommand};
+
+use crate::report::{self, ReportOptions};
+use crate::scan::{self, ScanOptions};
+use crate::source::{FormatChoice, OpenOptions};
+
+#[derive(Debug, Parser)]
+#[command(name = "plumbline", version, about = "Shape, quality and record types for data files you have never seen")]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Option<Command>,
+    /// A file or directory to open in the window.
+    pub path: Option<PathBuf>,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum Command {
+    /// Print the field tree of a source and optionally write the JSON report.
+    Profile(ProfileArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct ProfileArgs {
+    /// A file (Parquet, Arrow IPC, JSON, JSON Lines, CSV, TSV; gzip or zstd
+    /// for the text formats) or a directory of part files.
+    pub path: PathBuf,
+    /// Write the JSON report to this file (written atomically).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Replace the --json file if it exists.
+    #[arg(long)]
+    pub force: bool,
+    /// Read only the schema and metadata (the first rows for JSON and CSV).
+    #[arg(long)]
+    pub shape_only: bool,
+    /// Read the file as this format instead of detecting it; a file not in
+    /// that format is an error, never a guess.
+    #[arg(long, value_enum)]
+    pub format: Option<FormatChoice>,
+    /// Leave data values (examples) out of the report and the output.
+    #[arg(long)]
+    pub no_examples: bool,
+}
+
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Some(Command::Profile(args)) => run_profile(&args),
+        None => match crate::gui::run(cli.path) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => fail(&e),
+        },
+    }
+}
+
+fn fail(message: &dyn std::fmt::Display) -> ExitCode {
+    eprintln!("error: {message}");
+    ExitCode::from(2)
+}
+
+fn run_profile(args: &ProfileArgs) -> ExitCode {
+    let open = OpenOptions { format: args.format };
+    let options = ScanOptions { shape_only: args.shape_only };
+    let stop = AtomicBool::new(false);
+    let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
+        Ok(s) => s,
+        Err(e) => return fail(&e),
+    };
+    let report_options = ReportOptions { no_examples: args.no_examples };
+    print!("{}", tree::render(&scan, report_options));
+    if let Some(json) = &args.json {
+        let report = report::build(&scan, report_options);
+        if let Err(e) = report::write::write_atomically(json, report::to_json(&report).as_bytes(), args.force) {
+            return fail(&e);
+        }
+    }
+    match &scan.coverage {
+        scan::Coverage::Broken { error, .. } => fail(error),
+        _ => ExitCode::SUCCESS,
+    }
+}

@@ -1,0 +1,108 @@
+//! The field tree as indented text, for the terminal.
+
+use std::fmt::Write as _;
+
+use crate::report::ReportOptions;
+use crate::scan::Scan;
+use crate::shape::FieldShape;
+use crate::format::{group_digits, human_bytes};
+use crate::source::Compression;
+
+pub fn render(scan: &Scan, options: ReportOptions) -> String {
+    let mut out = String::new();
+    let info = &scan.info;
+    let compression = match info.compression {
+        Compression::None => String::new(),
+        c => format!(" ({c:?}-compressed)").to_lowercase(),
+    };
+    let rows = match scan.coverage {
+        crate::scan::Coverage::SchemaOnly => info.rows,
+        _ => Some(scan.shape.rows),
+    };
+    let _ = writeln!(
+        out,
+        "{}: {}{}, {}, {} rows, {} part{}",
+        info.path.display(),
+        info.format.label(),
+        compression,
+        human_bytes(info.bytes),
+        rows.map_or("unknown".into(), group_digits),
+        info.parts,
+        if info.parts == 1 { "" } else { "s" }
+    );
+    let facts = &info.facts;
+    let mut fact_line = Vec::new();
+    if let Some(g) = facts.row_groups {
+        fact_line.push(format!("row groups: {g}"));
+    }
+    if let Some(b) = facts.record_batches {
+        fact_line.push(format!("record batches: {b}"));
+    }
+    if !facts.codecs.is_empty() {
+        fact_line.push(format!("codecs: {}", facts.codecs.join(", ")));
+    }
+    if let Some(w) = &facts.writer {
+        fact_line.push(format!("writer: {w}"));
+    }
+    if let Some(d) = &facts.delimited {
+        fact_line.push(format!("delimiter: {} · header: {}", d.delimiter, if d.header { "yes" } else { "no" }));
+    }
+    if !facts.partition_fields.is_empty() {
+        fact_line.push(format!("partition fields: {}", facts.partition_fields.join(", ")));
+    }
+    if !fact_line.is_empty() {
+        let _ = writeln!(out, "  {}", fact_line.join(" · "));
+    }
+    for difference in &facts.schema_differences {
+        let _ = writeln!(out, "  schema differs: {difference}");
+    }
+    if let Some(note) = scan.coverage.describe() {
+        let label = if scan.coverage.is_partial() { "PARTIAL" } else { "NOTE" };
+        let _ = writeln!(out, "  {label}: {note}");
+    }
+    out.push('\n');
+
+    let mut lines: Vec<(String, String, String, String)> = Vec::new();
+    scan.shape.walk(|f, depth| {
+        let name = format!("{}{}", "  ".repeat(depth), display_name(f));
+        let counts = format!("{} present · {} null · {} missing", group_digits(f.present()), group_digits(f.nulls()), group_digits(f.missing));
+        lines.push((name, f.type_label(), counts, kinds_text(f, options)));
+    });
+    let w_name = lines.iter().map(|l| l.0.chars().count()).max().unwrap_or(0).max(5);
+    let w_type = lines.iter().map(|l| l.1.chars().count()).max().unwrap_or(0).max(4);
+    let w_counts = lines.iter().map(|l| l.2.chars().count()).max().unwrap_or(0);
+    let _ = writeln!(out, "{:<w_name$}  {:<w_type$}  {:<w_counts$}  observed", "field", "type", "counts");
+    for (name, ty, counts, kinds) in lines {
+        let _ = writeln!(out, "{name:<w_name$}  {ty:<w_type$}  {counts:<w_counts$}  {kinds}");
+    }
+    out
+}
+
+fn display_name(f: &FieldShape) -> String {
+    match f.role {
+        crate::shape::Role::Member | crate::shape::Role::Variant => f.path.rsplit_once('.').map_or(f.path.clone(), |(_, n)| n.to_string()).replace("``", "`"),
+        crate::shape::Role::Element => "[]".into(),
+        crate::shape::Role::MapKey => "{key}".into(),
+        crate::shape::Role::MapValue => "{}".into(),
+    }
+}
+
+fn kinds_text(f: &FieldShape, options: ReportOptions) -> String {
+    let mut text = crate::shape::observed_label(&f.kinds);
+    let forms: Vec<String> = f.kinds.forms.iter().map(|(name, n)| format!("{name} {}", group_digits(n))).collect();
+    if !forms.is_empty() {
+        text = format!("{text} (as text: {})", forms.join(", "));
+    }
+    if !options.no_examples {
+        let examples: Vec<String> = f
+            .minority_examples()
+            .iter()
+            .map(|(k, e)| format!("row {} {}: {}", e.row, k.name(), e.value))
+            .collect();
+        if !examples.is_empty() {
+            text = format!("{text}; e.g. {}", examples.join("; "));
+        }
+    }
+    text
+}
+

@@ -1,0 +1,71 @@
+//! Source bar: open a source, see its facts and the reading progress.
+
+use eframe::egui;
+
+use super::state::{Intent, State};
+use crate::format::{group_digits, human_bytes};
+
+#[derive(Default)]
+pub struct SourceBar;
+
+impl SourceBar {
+    pub fn show(&mut self, ui: &mut egui::Ui, state: &State) -> Vec<Intent> {
+        let mut intents = Vec::new();
+        ui.horizontal(|ui| {
+            if ui.button("Open…").on_hover_text("Open a file or a directory of part files").clicked() {
+                intents.push(Intent::ChooseFile);
+            }
+            ui.separator();
+            if let Some(reading) = &state.reading {
+                ui.label(format!("Reading {}", reading.path.display()));
+                match reading.fraction() {
+                    Some(f) => {
+                        ui.add(egui::ProgressBar::new(f).desired_width(160.0).show_percentage());
+                    }
+                    None => {
+                        ui.spinner();
+                    }
+                }
+                if ui.button("Stop").clicked() {
+                    intents.push(Intent::StopReading);
+                }
+            } else if let Some(scan) = &state.scan {
+                let info = &scan.info;
+                ui.strong(info.path.display().to_string());
+                ui.label(format!(
+                    "{} · {} · {} rows · {} part{}",
+                    info.format.label(),
+                    human_bytes(info.bytes),
+                    group_digits(scan.shape.rows),
+                    info.parts,
+                    if info.parts == 1 { "" } else { "s" }
+                ));
+                if let Some(g) = info.facts.row_groups {
+                    ui.label(format!("· {g} row groups"));
+                }
+                if !info.facts.codecs.is_empty() {
+                    ui.label(format!("· {}", info.facts.codecs.join(", ")));
+                }
+                match scan.coverage.describe() {
+                    Some(note) => {
+                        ui.colored_label(ui.visuals().warn_fg_color, format!("Partial: {note}"));
+                    }
+                    None => {
+                        ui.label("· every row read");
+                    }
+                }
+            } else {
+                ui.label("No source open. Open a Parquet, Arrow IPC, JSON, JSON Lines or CSV file, or drop one here.");
+            }
+        });
+        if let Some(message) = &state.message {
+            ui.horizontal(|ui| {
+                ui.colored_label(ui.visuals().error_fg_color, message);
+                if ui.small_button("Dismiss").clicked() {
+                    intents.push(Intent::DismissMessage);
+                }
+            });
+        }
+        intents
+    }
+}

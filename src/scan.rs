@@ -1,0 +1,121 @@
+//! Reading a source into its Shape: the one driver both the CLI and the
+//! window call, with progress, stop, and an honest account of how complete
+//! the result is.
+
+use std::path::Path;
+use std::sync::atomic::{AtomicBool, Ordering};
+
+use crate::shape::{Shape, ShapeBuilder};
+use crate::source::{self, OpenOptions, Progress, Source, SourceError, SourceInfo};
+
+/// Rows read for a schema-less format when only the shape is asked for.
+pub const SHAPE_ONLY_ROWS: u64 = 1000;
+
+#[derive(Debug, Clone, Copy, Default)]
+pub struct ScanOptions {
+    /// Read only the schema and metadata; for JSON and CSV (which declare no
+    /// schema) infer from the first [`SHAPE_ONLY_ROWS`] rows.
+    pub shape_only: bool,
+}
+
+/// How much of the source the Shape covers.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum Coverage {
+    /// Every row.
+    Full,
+    /// Schema and metadata only; no rows read.
+    SchemaOnly,
+    /// The first rows only (shape-only on a schema-less format).
+    FirstRows(u64),
+    /// Stopped by the user after this many rows.
+    Stopped(u64),
+    /// The source broke after this many rows; the message says where.
+    Broken { rows: u64, error: String },
+}
+
+impl Coverage {
+    pub fn is_partial(&self) -> bool {
+        !matches!(self, Coverage::Full | Coverage::SchemaOnly)
+    }
+
+    /// A sentence for people, or `None` when the shape is complete.
+    pub fn describe(&self) -> Option<String> {
+        match self {
+            Coverage::Full => None,
+            Coverage::SchemaOnly => Some("schema and metadata only; no rows were read".into()),
+            Coverage::FirstRows(n) => Some(format!("inferred from the first {n} rows only")),
+            Coverage::Stopped(n) => Some(format!("stopped by the user after {n} rows")),
+            Coverage::Broken { rows, error } => Some(format!("the source broke after {rows} rows: {error}")),
+        }
+    }
+}
+
+#[derive(Debug, Clone)]
+pub struct Scan {
+    pub info: SourceInfo,
+    pub shape: Shape,
+    pub coverage: Coverage,
+}
+
+/// Opens `path` and reads its Shape. Errors opening the source are returned;
+/// errors part-way are kept in the scan as [`Coverage::Broken`].
+pub fn scan_path(
+    path: &Path,
+    open: OpenOptions,
+    options: ScanOptions,
+    stop: &AtomicBool,
+    progress: &mut dyn FnMut(Progress),
+) -> Result<Scan, SourceError> {
+    let mut source = source::open(path, open)?;
+    Ok(scan_source(source.as_mut(), options, stop, progress))
+}
+
+pub fn scan_source(
+    source: &mut dyn Source,
+    options: ScanOptions,
+    stop: &AtomicBool,
+    progress: &mut dyn FnMut(Progress),
+) -> Scan {
+    let info = source.info().clone();
+    let mut builder = ShapeBuilder::new(&info);
+    let has_schema = info.schema.is_some();
+    if options.shape_only && has_schema {
+        return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly };
+    }
+    let row_limit = options.shape_only.then_some(SHAPE_ONLY_ROWS);
+    let coverage = loop {
+        if stop.load(Ordering::Relaxed) {
+            break Coverage::Stopped(builder.rows());
+        }
+        if let Some(limit) = row_limit
+            && builder.rows() >= limit
+        {
+            break Coverage::FirstRows(builder.rows());
+        }
+        match source.next_batch() {
+            Ok(Some(batch)) => {
+                let batch = match row_limit {
+                    Some(limit) => truncate_batch(batch, (limit - builder.rows()) as usize),
+                    None => batch,
+                };
+                builder.add(&batch);
+                progress(source.progress());
+            }
+            Ok(None) => break Coverage::Full,
+            Err(e) => break Coverage::Broken { rows: builder.rows(), error: e.to_string() },
+        }
+    };
+    Scan { info, shape: builder.finish(), coverage }
+}
+
+fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {
+    match batch {
+        source::Batch::Arrow(b) if b.num_rows() > keep => source::Batch::Arrow(b.slice(0, keep)),
+        source::Batch::Rows(mut r) if r.len() > keep => {
+            r.truncate(keep);
+            source::Batch::Rows(r)
+        }
+        other => other,
+    }
+}
+

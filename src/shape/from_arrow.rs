@@ -1,0 +1,241 @@
+//! Observing Arrow record batches into the field tree, in bulk.
+//!
+//! Nested arrays carry values at positions that do not count (children of a
+//! null struct, elements under a null list), so each call gets a mask of the
+//! positions that are places of the field; `None` means all of them.
+
+use arrow_array::cast::AsArray;
+use arrow_array::types::*;
+use arrow_array::{Array, ArrowPrimitiveType, PrimitiveArray, RecordBatch};
+use arrow_buffer::{BooleanBuffer, BooleanBufferBuilder};
+use arrow_schema::{DataType, Field, UnionMode};
+
+use super::declared::Declared;
+use super::{FieldShape, Kind, Role};
+
+pub fn observe_batch(root: &mut FieldShape, batch: &RecordBatch) {
+    let schema = batch.schema();
+    for (field, column) in schema.fields().iter().zip(batch.columns()) {
+        let child = child_for(root, field, Role::Member);
+        observe_array(child, column.as_ref(), None);
+    }
+}
+
+/// The child for `field`, declaring its type if the schema seed did not.
+fn child_for<'a>(node: &'a mut FieldShape, field: &Field, role: Role) -> &'a mut FieldShape {
+    let child = node.child_mut(field.name(), role);
+    if child.declared.is_none() {
+        child.declared = Some(Declared {
+            arrow: field.data_type().to_string(),
+            data_type: field.data_type().clone(),
+            nullable: field.is_nullable(),
+            parquet: None,
+        });
+    }
+    child
+}
+
+pub fn kind_of(data_type: &DataType) -> Kind {
+    use DataType::*;
+    match data_type {
+        Null => Kind::Null,
+        Boolean => Kind::Bool,
+        Int8 | Int16 | Int32 | Int64 | UInt8 | UInt16 | UInt32 | UInt64 => Kind::Int,
+        Float16 | Float32 | Float64 => Kind::Float,
+        Decimal32(..) | Decimal64(..) | Decimal128(..) | Decimal256(..) => Kind::Decimal,
+        Utf8 | LargeUtf8 | Utf8View => Kind::String,
+        Binary | LargeBinary | BinaryView | FixedSizeBinary(_) => Kind::Binary,
+        Date32 | Date64 => Kind::Date,
+        Time32(_) | Time64(_) => Kind::Time,
+        Timestamp(..) => Kind::Timestamp,
+        Duration(_) => Kind::Duration,
+        Interval(_) => Kind::Interval,
+        Struct(_) => Kind::Object,
+        List(_) | LargeList(_) | ListView(_) | LargeListView(_) | FixedSizeList(..) => Kind::Array,
+        Map(..) => Kind::Map,
+        Dictionary(_, v) => kind_of(v),
+        RunEndEncoded(_, v) => kind_of(v.data_type()),
+        // A union's kind is that of the variant each value takes (see below).
+        Union(..) => Kind::Object,
+    }
+}
+
+fn and_masks(a: Option<&BooleanBuffer>, b: Option<&BooleanBuffer>) -> Option<BooleanBuffer> {
+    match (a, b) {
+        (None, None) => None,
+        (Some(m), None) | (None, Some(m)) => Some(m.clone()),
+        (Some(a), Some(b)) => Some(a & b),
+    }
+}
+
+fn observe_array(node: &mut FieldShape, array: &dyn Array, mask: Option<&BooleanBuffer>) {
+    let len = array.len();
+    let places = mask.map_or(len, |m| m.count_set_bits()) as u64;
+    node.appeared += places;
+    let valid = array.logical_nulls().map(|n| n.into_inner());
+    let present_mask = and_masks(mask, valid.as_ref());
+    let present = present_mask.as_ref().map_or(len, |p| p.count_set_bits()) as u64;
+    node.kinds.add(Kind::Null, places - present);
+    if present > 0 || array.data_type().is_nested() {
+        observe_present(node, array, present_mask.as_ref(), present);
+    }
+}
+
+/// Positions set in `mask`, or all of `0..len`.
+fn positions(mask: Option<&BooleanBuffer>, len: usize) -> Box<dyn Iterator<Item = usize> + '_> {
+    match mask {
+        Some(m) => Box::new(m.set_indices()),
+        None => Box::new(0..len),
+    }
+}
+
+fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&BooleanBuffer>, n: u64) {
+    use DataType::*;
+    match array.data_type() {
+        Int8 => int_range::<Int8Type>(node, array, present),
+        Int16 => int_range::<Int16Type>(node, array, present),
+        Int32 => int_range::<Int32Type>(node, array, present),
+        Int64 => int_range::<Int64Type>(node, array, present),
+        UInt8 => int_range::<UInt8Type>(node, array, present),
+        UInt16 => int_range::<UInt16Type>(node, array, present),
+        UInt32 => int_range::<UInt32Type>(node, array, present),
+        UInt64 => int_range::<UInt64Type>(node, array, present),
+        Utf8 => {
+            let a = array.as_string::<i32>();
+            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
+            node.kinds.add(Kind::String, n);
+        }
+        LargeUtf8 => {
+            let a = array.as_string::<i64>();
+            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
+            node.kinds.add(Kind::String, n);
+        }
+        Utf8View => {
+            let a = array.as_string_view();
+            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
+            node.kinds.add(Kind::String, n);
+        }
+        Struct(fields) => {
+            node.kinds.add(Kind::Object, n);
+            let s = array.as_struct();
+            for (field, column) in fields.iter().zip(s.columns()) {
+                let child = child_for(node, field, Role::Member);
+                observe_array(child, column.as_ref(), present);
+            }
+        }
+        List(field) => {
+            node.kinds.add(Kind::Array, n);
+            let l = array.as_list::<i32>();
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let mask = ranges_mask(l.values().len(), ranges);
+            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+        }
+        LargeList(field) => {
+            node.kinds.add(Kind::Array, n);
+            let l = array.as_list::<i64>();
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let mask = ranges_mask(l.values().len(), ranges);
+            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+        }
+        ListView(field) => {
+            node.kinds.add(Kind::Array, n);
+            let l = array.as_list_view::<i32>();
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let mask = ranges_mask(l.values().len(), ranges);
+            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+        }
+        LargeListView(field) => {
+            node.kinds.add(Kind::Array, n);
+            let l = array.as_list_view::<i64>();
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let mask = ranges_mask(l.values().len(), ranges);
+            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+        }
+        FixedSizeList(field, size) => {
+            node.kinds.add(Kind::Array, n);
+            let l = array.as_fixed_size_list();
+            let size = *size as usize;
+            let ranges = positions(present, l.len()).map(|i| (i * size, size));
+            let mask = ranges_mask(l.values().len(), ranges);
+            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+        }
+        Map(_, _) => {
+            node.kinds.add(Kind::Map, n);
+            let m = array.as_map();
+            let ranges = positions(present, m.len()).map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize));
+            let mask = ranges_mask(m.entries().len(), ranges);
+            let entries = m.entries();
+            if let DataType::Struct(kv) = entries.data_type()
+                && kv.len() == 2
+            {
+                observe_array(child_for(node, &kv[0], Role::MapKey), entries.column(0).as_ref(), Some(&mask));
+                observe_array(child_for(node, &kv[1], Role::MapValue), entries.column(1).as_ref(), Some(&mask));
+            }
+        }
+        Union(fields, mode) => {
+            let u = array.as_union();
+            for (type_id, field) in fields.iter() {
+                let chosen: Vec<usize> = positions(present, u.len()).filter(|&i| u.type_id(i) == type_id).collect();
+                node.kinds.add(kind_of(field.data_type()), chosen.len() as u64);
+                let child_array = u.child(type_id);
+                let child_positions: Vec<usize> = match mode {
+                    UnionMode::Sparse => chosen,
+                    UnionMode::Dense => chosen.iter().map(|&i| u.value_offset(i)).collect(),
+                };
+                let mask = ranges_mask(child_array.len(), child_positions.into_iter().map(|p| (p, 1)));
+                let child = child_for(node, field, Role::Variant);
+                observe_array(child, child_array.as_ref(), Some(&mask));
+            }
+        }
+        Dictionary(..) | RunEndEncoded(..) => {
+            let target = value_type_of(array.data_type());
+            match arrow_cast::cast(array, &target) {
+                Ok(plain) => observe_present(node, plain.as_ref(), present, n),
+                Err(_) => node.kinds.add(kind_of(&target), n),
+            }
+        }
+        other => node.kinds.add(kind_of(other), n),
+    }
+}
+
+fn value_type_of(data_type: &DataType) -> DataType {
+    match data_type {
+        DataType::Dictionary(_, v) => v.as_ref().clone(),
+        DataType::RunEndEncoded(_, v) => v.data_type().clone(),
+        other => other.clone(),
+    }
+}
+
+fn int_range<T>(node: &mut FieldShape, array: &dyn Array, present: Option<&BooleanBuffer>)
+where
+    T: ArrowPrimitiveType,
+    T::Native: Into<i128>,
+{
+    let a: &PrimitiveArray<T> = array.as_primitive::<T>();
+    let values = a.values();
+    let mut lo = i128::MAX;
+    let mut hi = i128::MIN;
+    let mut n = 0u64;
+    for i in positions(present, a.len()) {
+        let v: i128 = values[i].into();
+        lo = lo.min(v);
+        hi = hi.max(v);
+        n += 1;
+    }
+    node.kinds.add(Kind::Int, n);
+    if n > 0 {
+        node.kinds.widen_int_range(lo, hi);
+    }
+}
+
+/// A mask of length `len` with the given (start, length) ranges set.
+fn ranges_mask(len: usize, ranges: impl Iterator<Item = (usize, usize)>) -> BooleanBuffer {
+    let mut builder = BooleanBufferBuilder::new(len);
+    builder.append_n(len, false);
+    for (start, n) in ranges {
+        for i in start..(start + n).min(len) {
+            builder.set_bit(i, true);
+        }
+    }
+    builder.finish()
+}

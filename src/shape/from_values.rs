@@ -1,0 +1,76 @@
+//! Observing rows of values (JSON, CSV) into the field tree, one value at a
+//! time, keeping a missing key apart from an explicit null.
+
+use super::{EXAMPLE_CHARS, FieldShape, Kind, Role};
+use crate::value::{Value, truncate_chars};
+
+pub fn observe_rows(root: &mut FieldShape, rows: &[Value], first_row: u64) {
+    for (i, row) in rows.iter().enumerate() {
+        let row_number = first_row + i as u64;
+        match row {
+            Value::Object(members) => observe_members(root, members, row_number),
+            // Readers wrap non-objects; keep any stray value visible anyway.
+            other => observe_value(root.child_mut(crate::source::json::VALUE_FIELD, Role::Member), other, row_number),
+        }
+    }
+}
+
+fn observe_members(node: &mut FieldShape, members: &[(String, Value)], row: u64) {
+    for (i, (key, value)) in members.iter().enumerate() {
+        observe_value(node.member_mut_hinted(key, i), value, row);
+    }
+}
+
+pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
+    node.appeared += 1;
+    let kind = match value {
+        Value::Null => {
+            node.kinds.add(Kind::Null, 1);
+            return;
+        }
+        Value::Bool(_) => {
+            node.kinds.add(Kind::Bool, 1);
+            Kind::Bool
+        }
+        Value::Int(i) => {
+            node.kinds.add_int(*i as i128);
+            Kind::Int
+        }
+        Value::UInt(u) => {
+            node.kinds.add_int(*u as i128);
+            Kind::Int
+        }
+        Value::BigInt(_) => {
+            node.kinds.add(Kind::Decimal, 1);
+            Kind::Decimal
+        }
+        Value::Float(_) => {
+            node.kinds.add(Kind::Float, 1);
+            Kind::Float
+        }
+        Value::Str(s) => {
+            node.kinds.add(Kind::String, 1);
+            node.kinds.forms.observe(s);
+            Kind::String
+        }
+        Value::Array(items) => {
+            node.kinds.add(Kind::Array, 1);
+            if !items.is_empty() {
+                let element = node.child_mut("[]", Role::Element);
+                for item in items {
+                    observe_value(element, item, row);
+                }
+            }
+            Kind::Array
+        }
+        Value::Object(members) => {
+            node.kinds.add(Kind::Object, 1);
+            observe_members(node, members, row);
+            Kind::Object
+        }
+    };
+    node.note_example(kind, row, || match value {
+        Value::Str(s) => truncate_chars(s.clone(), EXAMPLE_CHARS),
+        other => other.to_display(EXAMPLE_CHARS),
+    });
+}

@@ -1,0 +1,334 @@
+//! The Shape: a tree of fields, each with its declared type (from the file's
+//! schema) and what was observed in the data: kinds with counts, and
+//! present / null / missing counts.
+//!
+//! Counting rule: a field's `count` is the number of places it could have a
+//! value — the rows for a top-level field, the times its parent was an
+//! object for a member, the elements seen for `[]`, the entries for `{}`
+//! and `{key}`. Each place is either present (a non-null value), null, or
+//! missing (JSON: the key was absent; directories: the part lacks the field).
+
+mod declared;
+mod from_arrow;
+mod from_values;
+pub mod kinds;
+pub mod strings;
+
+use std::collections::{BTreeMap, HashMap};
+
+use serde::Serialize;
+
+pub use declared::Declared;
+pub use kinds::{Kind, KindCounts, Unified};
+
+use crate::source::{Batch, SourceInfo};
+
+/// Examples kept per kind per field (for showing minority kinds).
+pub const EXAMPLES_PER_KIND: usize = 3;
+/// Characters kept of an example's raw value.
+pub const EXAMPLE_CHARS: usize = 80;
+
+/// How a field hangs from its parent.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Role {
+    Member,
+    Element,
+    MapKey,
+    MapValue,
+    /// A variant of an Arrow union: missing wherever another variant was taken.
+    Variant,
+}
+
+/// A value seen in the data, kept to show what a kind looks like.
+#[derive(Debug, Clone, PartialEq, Eq, Serialize)]
+pub struct Example {
+    /// 0-based row number in the source.
+    pub row: u64,
+    /// The value as compact text, cut to [`EXAMPLE_CHARS`].
+    pub value: String,
+}
+
+#[derive(Debug, Clone, PartialEq)]
+pub struct FieldShape {
+    pub name: String,
+    pub path: String,
+    pub role: Role,
+    pub declared: Option<Declared>,
+    pub kinds: KindCounts,
+    /// Places where the field appeared, with a value or null.
+    pub appeared: u64,
+    /// Filled by [`ShapeBuilder::finish`]: see the module comment.
+    pub count: u64,
+    pub missing: u64,
+    pub examples: BTreeMap<Kind, Vec<Example>>,
+    pub children: Vec<FieldShape>,
+    index: HashMap<String, usize>,
+}
+
+impl FieldShape {
+    pub fn new(name: &str, path: String, role: Role) -> Self {
+        FieldShape {
+            name: name.to_string(),
+            path,
+            role,
+            declared: None,
+            kinds: KindCounts::default(),
+            appeared: 0,
+            count: 0,
+            missing: 0,
+            examples: BTreeMap::new(),
+            children: Vec::new(),
+            index: HashMap::new(),
+        }
+    }
+
+    pub fn nulls(&self) -> u64 {
+        self.kinds.get(Kind::Null)
+    }
+
+    pub fn present(&self) -> u64 {
+        self.kinds.non_null()
+    }
+
+    /// The child with `role` and `name`, created on first sight.
+    pub(crate) fn child_mut(&mut self, name: &str, role: Role) -> &mut FieldShape {
+        let key = child_key(name, role);
+        if let Some(&i) = self.index.get(&key) {
+            return &mut self.children[i];
+        }
+        let path = match role {
+            Role::Member | Role::Variant => crate::path::member(&self.path, name),
+            Role::Element => crate::path::element(&self.path),
+            Role::MapKey => crate::path::map_key(&self.path),
+            Role::MapValue => crate::path::map_value(&self.path),
+        };
+        self.index.insert(key, self.children.len());
+        self.children.push(FieldShape::new(name, path, role));
+        self.children.last_mut().expect("just pushed")
+    }
+
+    /// Looks a child up, trying position `hint` first (rows usually list
+    /// their keys in the same order).
+    pub(crate) fn member_mut_hinted(&mut self, name: &str, hint: usize) -> &mut FieldShape {
+        if let Some(c) = self.children.get(hint)
+            && c.role == Role::Member
+            && c.name == name
+        {
+            return &mut self.children[hint];
+        }
+        self.child_mut(name, Role::Member)
+    }
+
+    pub fn child(&self, name: &str, role: Role) -> Option<&FieldShape> {
+        self.index.get(&child_key(name, role)).map(|&i| &self.children[i])
+    }
+
+    pub(crate) fn note_example(&mut self, kind: Kind, row: u64, render: impl FnOnce() -> String) {
+        let list = self.examples.entry(kind).or_default();
+        if list.len() < EXAMPLES_PER_KIND {
+            list.push(Example { row, value: render() });
+        }
+    }
+
+    /// Examples of the kinds other than the most common one, when mixed.
+    pub fn minority_examples(&self) -> Vec<(Kind, &Example)> {
+        if self.kinds.unified() != Unified::Mixed {
+            return Vec::new();
+        }
+        let majority = self.kinds.majority();
+        self.examples
+            .iter()
+            .filter(|(k, _)| Some(**k) != majority && **k != Kind::Null)
+            .flat_map(|(k, list)| list.iter().map(move |e| (*k, e)))
+            .collect()
+    }
+
+    /// A short type description: the declared type when there is one,
+    /// otherwise what was observed.
+    pub fn type_label(&self) -> String {
+        if let Some(d) = &self.declared {
+            return d.short_label();
+        }
+        observed_label(&self.kinds)
+    }
+
+    /// Adds another shape of the same field (from another chunk) to this one.
+    pub fn merge(&mut self, other: &FieldShape) {
+        if self.declared.is_none() {
+            self.declared = other.declared.clone();
+        }
+        self.kinds.merge(&other.kinds);
+        self.appeared += other.appeared;
+        for (kind, list) in &other.examples {
+            let mine = self.examples.entry(*kind).or_default();
+            mine.extend(list.iter().cloned());
+            mine.sort_by_key(|e| e.row);
+            mine.truncate(EXAMPLES_PER_KIND);
+        }
+        for child in &other.children {
+            self.child_mut(&child.name, child.role).merge(child);
+        }
+    }
+
+    fn finish(&mut self, places: u64) {
+        self.count = places;
+        self.missing = places.saturating_sub(self.appeared);
+        let as_parent = self.kinds.get(Kind::Object);
+        let present = self.present();
+        for child in &mut self.children {
+            let places = match child.role {
+                Role::Member => as_parent,
+                Role::Variant => present,
+                Role::Element | Role::MapKey | Role::MapValue => child.appeared,
+            };
+            child.finish(places);
+        }
+    }
+
+    /// This field and all below it, depth first, with their depth.
+    pub fn walk(&self, depth: usize, visit: &mut impl FnMut(&FieldShape, usize)) {
+        visit(self, depth);
+        for c in &self.children {
+            c.walk(depth + 1, visit);
+        }
+    }
+}
+
+fn child_key(name: &str, role: Role) -> String {
+    match role {
+        Role::Member => format!("m:{name}"),
+        Role::Variant => format!("v:{name}"),
+        Role::Element => "[]".into(),
+        Role::MapKey => "{key}".into(),
+        Role::MapValue => "{}".into(),
+    }
+}
+
+/// Describes observed kinds: `int (int16)`, `string (timestamp)`,
+/// `mixed: int 90%, string 10%`.
+pub fn observed_label(kinds: &KindCounts) -> String {
+    match kinds.unified() {
+        Unified::Nothing => "null".into(),
+        Unified::One(Kind::Int) => match kinds.int_range {
+            Some((lo, hi)) => format!("int ({})", kinds::fitting_int(lo, hi)),
+            None => "int".into(),
+        },
+        Unified::One(Kind::String) => {
+            let total = kinds.get(Kind::String);
+            match kinds.forms.iter().find(|&(_, n)| n == total) {
+                Some((form, _)) => format!("string ({form})"),
+                None => "string".into(),
+            }
+        }
+        Unified::One(k) => k.name().into(),
+        Unified::Mixed => {
+            let total = kinds.non_null().max(1);
+            let parts: Vec<String> = kinds
+                .iter()
+                .filter(|(k, _)| *k != Kind::Null)
+                .map(|(k, n)| format!("{} {}%", k.name(), percent(n, total)))
+                .collect();
+            format!("mixed: {}", parts.join(", "))
+        }
+    }
+}
+
+fn percent(n: u64, total: u64) -> String {
+    let p = n as f64 * 100.0 / total as f64;
+    if p >= 1.0 || p == 0.0 { format!("{p:.0}") } else { "<1".into() }
+}
+
+/// The whole Shape of a source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Shape {
+    pub rows: u64,
+    /// Top-level fields in the order first seen (schema order for typed formats).
+    pub fields: Vec<FieldShape>,
+}
+
+impl Shape {
+    /// Every field, depth first, with its depth (0 for top level).
+    pub fn walk(&self, mut visit: impl FnMut(&FieldShape, usize)) {
+        for f in &self.fields {
+            f.walk(0, &mut visit);
+        }
+    }
+
+    /// Finds a field by its path.
+    pub fn find(&self, path: &str) -> Option<&FieldShape> {
+        fn find_in<'a>(fields: &'a [FieldShape], path: &str) -> Option<&'a FieldShape> {
+            fields.iter().find_map(|f| if f.path == path { Some(f) } else { find_in(&f.children, path) })
+        }
+        find_in(&self.fields, path)
+    }
+}
+
+/// Builds a Shape batch by batch; chunks built apart can be merged.
+#[derive(Debug, Clone)]
+pub struct ShapeBuilder {
+    /// A virtual object whose members are the top-level fields.
+    root: FieldShape,
+    rows: u64,
+}
+
+impl ShapeBuilder {
+    /// Starts from the declared schema, so every declared field is shown even
+    /// when no row holds it.
+    pub fn new(info: &SourceInfo) -> Self {
+        let mut root = FieldShape::new("", String::new(), Role::Member);
+        if let Some(schema) = &info.schema {
+            declared::seed_from_schema(&mut root, schema, info.parquet_leaves.as_deref());
+        }
+        ShapeBuilder { root, rows: 0 }
+    }
+
+    /// An empty builder for a chunk; merge it into the main one afterwards.
+    pub fn empty() -> Self {
+        ShapeBuilder { root: FieldShape::new("", String::new(), Role::Member), rows: 0 }
+    }
+
+    pub fn rows(&self) -> u64 {
+        self.rows
+    }
+
+    /// Observes one batch whose first row has number `self.rows()`.
+    pub fn add(&mut self, batch: &Batch) {
+        let first_row = self.rows;
+        match batch {
+            Batch::Arrow(b) => from_arrow::observe_batch(&mut self.root, b),
+            Batch::Rows(rows) => from_values::observe_rows(&mut self.root, rows, first_row),
+        }
+        self.rows += batch.num_rows() as u64;
+        self.root.kinds.add(Kind::Object, batch.num_rows() as u64);
+        self.root.appeared += batch.num_rows() as u64;
+    }
+
+    /// Merges a chunk that came after everything already added.
+    pub fn merge_after(&mut self, mut later: ShapeBuilder) {
+        let offset = self.rows;
+        later.root.walk_mut(&mut |f| {
+            for list in f.examples.values_mut() {
+                for e in list {
+                    e.row += offset;
+                }
+            }
+        });
+        self.root.merge(&later.root);
+        self.rows += later.rows;
+    }
+
+    pub fn finish(mut self) -> Shape {
+        self.root.finish(self.rows);
+        Shape { rows: self.rows, fields: self.root.children }
+    }
+}
+
+impl FieldShape {
+    fn walk_mut(&mut self, visit: &mut impl FnMut(&mut FieldShape)) {
+        visit(self);
+        for c in &mut self.children {
+            c.walk_mut(visit);
+        }
+    }
+}

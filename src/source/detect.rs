@@ -1,0 +1,350 @@
+//! Format detection: by content first (magic bytes, then the shape of the
+//! text), by file extension only where the content cannot decide.
+
+use std::fs::File;
+use std::io::Read;
+use std::path::Path;
+
+use super::decompress::{Compression, open_decompressed};
+use super::error::SourceError;
+use super::json::parse::is_json_ws;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Format {
+    Parquet,
+    ArrowFile,
+    ArrowStream,
+    Json,
+    JsonLines,
+    Csv,
+    Tsv,
+}
+
+impl Format {
+    /// The name used in reports and on the command line's output.
+    pub fn label(self) -> &'static str {
+        match self {
+            Format::Parquet => "Parquet",
+            Format::ArrowFile => "Arrow IPC file",
+            Format::ArrowStream => "Arrow IPC stream",
+            Format::Json => "JSON",
+            Format::JsonLines => "JSON Lines",
+            Format::Csv => "CSV",
+            Format::Tsv => "TSV",
+        }
+    }
+
+    pub fn is_text(self) -> bool {
+        matches!(self, Format::Json | Format::JsonLines | Format::Csv | Format::Tsv)
+    }
+}
+
+/// What the user may force with `--format`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum FormatChoice {
+    Parquet,
+    /// Arrow IPC, file or stream (told apart by the file's first bytes).
+    Ipc,
+    Json,
+    Jsonl,
+    Csv,
+    Tsv,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Detected {
+    pub format: Format,
+    pub compression: Compression,
+}
+
+const PARQUET_MAGIC: &[u8] = b"PAR1";
+const ARROW_FILE_MAGIC: &[u8] = b"ARROW1";
+const GZIP_MAGIC: &[u8] = &[0x1f, 0x8b];
+const ZSTD_MAGIC: &[u8] = &[0x28, 0xb5, 0x2f, 0xfd];
+/// How much (decompressed) text is looked at to tell JSON, JSON Lines and CSV apart.
+const SNIFF_BYTES: usize = 64 * 1024;
+
+/// Detects the format of one file, or checks the forced one.
+pub fn detect(path: &Path, forced: Option<FormatChoice>) -> Result<Detected, SourceError> {
+    let mut head = [0u8; 8];
+    let mut file = File::open(path).map_err(|e| SourceError::io(path, e))?;
+    let len = file.metadata().map_err(|e| SourceError::io(path, e))?.len();
+    if len == 0 {
+        return Err(SourceError::Empty { path: path.to_path_buf() });
+    }
+    let n = read_up_to(&mut file, &mut head).map_err(|e| SourceError::io(path, e))?;
+    let head = &head[..n];
+    let compression = if head.starts_with(GZIP_MAGIC) {
+        Compression::Gzip
+    } else if head.starts_with(ZSTD_MAGIC) {
+        Compression::Zstd
+    } else {
+        Compression::None
+    };
+
+    let binary = binary_format(head);
+    if let Some(choice) = forced {
+        return check_forced(path, choice, binary, compression);
+    }
+    if let Some(format) = binary {
+        return Ok(Detected { format, compression });
+    }
+    let text = sniff_text(path, compression)?;
+    let format = text_format(path, &text)?;
+    Ok(Detected { format, compression })
+}
+
+fn binary_format(head: &[u8]) -> Option<Format> {
+    if head.starts_with(PARQUET_MAGIC) {
+        Some(Format::Parquet)
+    } else if head.starts_with(ARROW_FILE_MAGIC) {
+        Some(Format::ArrowFile)
+    } else if looks_like_ipc_stream(head) {
+        Some(Format::ArrowStream)
+    } else {
+        None
+    }
+}
+
+/// An IPC stream begins with the continuation marker 0xFFFFFFFF and a
+/// little-endian metadata length (Arrow columnar format, "Encapsulated
+/// message format").
+fn looks_like_ipc_stream(head: &[u8]) -> bool {
+    if head.len() < 8 || head[..4] != [0xff; 4] {
+        return false;
+    }
+    let len = i32::from_le_bytes([head[4], head[5], head[6], head[7]]);
+    len > 0
+}
+
+fn check_forced(
+    path: &Path,
+    choice: FormatChoice,
+    binary: Option<Format>,
+    compression: Compression,
+) -> Result<Detected, SourceError> {
+    let wrong = |expected: Format, reason: String| SourceError::WrongFormat {
+        path: path.to_path_buf(),
+        expected,
+        reason,
+    };
+    let format = match choice {
+        FormatChoice::Parquet => match binary {
+            Some(Format::Parquet) => Format::Parquet,
+            _ => return Err(wrong(Format::Parquet, "the file does not begin with the PAR1 magic".into())),
+        },
+        FormatChoice::Ipc => match binary {
+            Some(f @ (Format::ArrowFile | Format::ArrowStream)) => f,
+            _ => {
+                return Err(wrong(
+                    Format::ArrowFile,
+                    "the file begins with neither the ARROW1 magic nor an IPC stream message".into(),
+                ));
+            }
+        },
+        text_choice => {
+            let format = match text_choice {
+                FormatChoice::Json => Format::Json,
+                FormatChoice::Jsonl => Format::JsonLines,
+                FormatChoice::Csv => Format::Csv,
+                _ => Format::Tsv,
+            };
+            if let Some(b) = binary {
+                return Err(wrong(format, format!("it is a {} file", b.label())));
+            }
+            let text = sniff_text(path, compression)?;
+            if !is_text(&text) {
+                return Err(wrong(format, "it holds binary data (NUL bytes or invalid UTF-8)".into()));
+            }
+            format
+        }
+    };
+    Ok(Detected { format, compression })
+}
+
+fn sniff_text(path: &Path, compression: Compression) -> Result<Vec<u8>, SourceError> {
+    let mut reader = open_decompressed(path, compression)?.reader;
+    let mut buf = vec![0u8; SNIFF_BYTES];
+    let n = read_up_to(&mut reader, &mut buf).map_err(|e| SourceError::io(path, e))?;
+    buf.truncate(n);
+    Ok(buf)
+}
+
+fn read_up_to(reader: &mut impl Read, buf: &mut [u8]) -> std::io::Result<usize> {
+    let mut filled = 0;
+    while filled < buf.len() {
+        match reader.read(&mut buf[filled..]) {
+            Ok(0) => break,
+            Ok(n) => filled += n,
+            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(e),
+        }
+    }
+    Ok(filled)
+}
+
+/// Text with no NUL bytes that is valid UTF-8 (a character cut by the end
+/// of the sniffed window is allowed).
+fn is_text(bytes: &[u8]) -> bool {
+    if bytes.contains(&0) {
+        return false;
+    }
+    match std::str::from_utf8(bytes) {
+        Ok(_) => true,
+        Err(e) => e.error_len().is_none(),
+    }
+}
+
+fn extension_of(path: &Path) -> String {
+    let name = path.file_name().map(|n| n.to_string_lossy().to_lowercase()).unwrap_or_default();
+    let name = name.strip_suffix(".gz").or_else(|| name.strip_suffix(".zst")).unwrap_or(&name);
+    name.rsplit_once('.').map(|(_, e)| e.to_string()).unwrap_or_default()
+}
+
+fn text_format(path: &Path, text: &[u8]) -> Result<Format, SourceError> {
+    let ext = extension_of(path);
+    if !is_text(text) {
+        return match ext.as_str() {
+            "json" => Ok(Format::Json),
+            "jsonl" | "ndjson" => Ok(Format::JsonLines),
+            _ => Err(SourceError::UnknownFormat {
+                path: path.to_path_buf(),
+                reason: "binary content with no known magic bytes".into(),
+            }),
+        };
+    }
+    let body = strip_bom(text);
+    let first = body.iter().position(|&b| !is_json_ws(b));
+    match first.map(|i| body[i]) {
+        Some(b'{' | b'[') => Ok(json_or_lines(&body[first.unwrap_or(0)..])),
+        _ if matches!(ext.as_str(), "json") => Ok(Format::Json),
+        _ if matches!(ext.as_str(), "jsonl" | "ndjson") => Ok(Format::JsonLines),
+        None => Err(SourceError::UnknownFormat {
+            path: path.to_path_buf(),
+            reason: "the file holds only whitespace".into(),
+        }),
+        Some(_) => Ok(match super::csv::sniff_delimiter(body) {
+            b'\t' => Format::Tsv,
+            _ => Format::Csv,
+        }),
+    }
+}
+
+pub fn strip_bom(bytes: &[u8]) -> &[u8] {
+    bytes.strip_prefix(&[0xEF, 0xBB, 0xBF][..]).unwrap_or(bytes)
+}
+
+/// JSON Lines when the first value ends on its line and another value
+/// starts on a later line; otherwise a single JSON document.
+fn json_or_lines(text: &[u8]) -> Format {
+    let Some(end) = end_of_first_value(text) else {
+        return Format::Json; // the first value is larger than the sniffed window
+    };
+    let rest = &text[end..];
+    let Some(next) = rest.iter().position(|&b| !is_json_ws(b)) else {
+        return Format::Json;
+    };
+    let newline_between = rest[..next].contains(&b'\n');
+    let starts_value = matches!(rest[next], b'{' | b'[' | b'"' | b'-' | b'0'..=b'9' | b't' | b'f' | b'n');
+    if newline_between && starts_value { Format::JsonLines } else { Format::Json }
+}
+
+/// Byte offset just past the first bracketed value, tracking strings so
+/// brackets inside them do not count.
+fn end_of_first_value(text: &[u8]) -> Option<usize> {
+    let mut depth = 0usize;
+    let mut in_string = false;
+    let mut escaped = false;
+    for (i, &b) in text.iter().enumerate() {
+        if in_string {
+            match (escaped, b) {
+                (true, _) => escaped = false,
+                (false, b'\\') => escaped = true,
+                (false, b'"') => in_string = false,
+                _ => {}
+            }
+            continue;
+        }
+        match b {
+            b'"' => in_string = true,
+            b'{' | b'[' => depth += 1,
+            b'}' | b']' => {
+                depth = depth.checked_sub(1)?;
+                if depth == 0 {
+                    return Some(i + 1);
+                }
+            }
+            _ => {}
+        }
+    }
+    None
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::io::Write;
+
+    fn detect_bytes(name: &str, bytes: &[u8]) -> Result<Detected, SourceError> {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join(name);
+        std::fs::write(&path, bytes).unwrap();
+        detect(&path, None)
+    }
+
+    fn format_of(name: &str, bytes: &[u8]) -> Format {
+        detect_bytes(name, bytes).unwrap().format
+    }
+
+    #[test]
+    fn magic_bytes_win_over_extension() {
+        assert_eq!(format_of("x.csv", b"PAR1\x15\x04"), Format::Parquet);
+        assert_eq!(format_of("x.json", b"ARROW1\0\0"), Format::ArrowFile);
+        assert_eq!(format_of("x.bin", &[0xff, 0xff, 0xff, 0xff, 0x10, 0, 0, 0]), Format::ArrowStream);
+    }
+
+    #[test]
+    fn json_documents_and_lines_are_told_apart_by_content() {
+        assert_eq!(format_of("a.json", b"{\"a\":1}\n{\"a\":2}\n"), Format::JsonLines);
+        assert_eq!(format_of("a.txt", b"[{\"a\":1},\n{\"a\":2}]"), Format::Json);
+        assert_eq!(format_of("a.jsonl", b"{\"a\":\n1}"), Format::Json);
+        assert_eq!(format_of("a", b"[1,2]\n[3]\n"), Format::JsonLines);
+        assert_eq!(format_of("a.json", b"\"just a string\""), Format::Json);
+        assert_eq!(format_of("a.json", b"{\"a\":\"}\"}  \n"), Format::Json);
+    }
+
+    #[test]
+    fn delimited_text_is_csv_or_tsv() {
+        assert_eq!(format_of("a.txt", b"a,b\n1,2\n"), Format::Csv);
+        assert_eq!(format_of("a.csv", b"a\tb\n1\t2\n"), Format::Tsv);
+    }
+
+    #[test]
+    fn gzip_is_looked_through() {
+        let mut enc = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+        enc.write_all(b"{\"a\":1}\n{\"a\":2}\n").unwrap();
+        let gz = enc.finish().unwrap();
+        let d = detect_bytes("x.json.gz", &gz).unwrap();
+        assert_eq!((d.format, d.compression), (Format::JsonLines, Compression::Gzip));
+    }
+
+    #[test]
+    fn forced_format_is_checked_not_trusted() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("t.csv");
+        std::fs::write(&path, b"a,b\n1,2\n").unwrap();
+        let e = detect(&path, Some(FormatChoice::Parquet)).unwrap_err();
+        assert!(e.to_string().contains("not Parquet data"), "{e}");
+        let parquet = dir.path().join("p.parquet");
+        std::fs::write(&parquet, b"PAR1....").unwrap();
+        let e = detect(&parquet, Some(FormatChoice::Csv)).unwrap_err();
+        assert!(e.to_string().contains("it is a Parquet file"), "{e}");
+    }
+
+    #[test]
+    fn empty_and_unknown_files_are_errors() {
+        assert!(matches!(detect_bytes("e.csv", b""), Err(SourceError::Empty { .. })));
+        assert!(matches!(detect_bytes("b.dat", &[0, 1, 2, 3, 0, 9]), Err(SourceError::UnknownFormat { .. })));
+    }
+}

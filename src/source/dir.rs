@@ -1,0 +1,357 @@
+//! A directory of part files read as one source.
+//!
+//! Every data file below the directory is a part; `_SUCCESS`, `*.crc`,
+//! hidden (`.`/`_`-prefixed) and zero-byte files are skipped. All parts must
+//! be of one format. `key=value` path segments (Hive-style partitions)
+//! become fields of every row of the parts beneath them; a value of
+//! `__HIVE_DEFAULT_PARTITION__` is null. Parts whose declared schemas differ
+//! from the first part's are reported field by field in the facts.
+
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+
+use arrow_array::{ArrayRef, Int64Array, RecordBatch, StringArray};
+use arrow_schema::{DataType, Field, Schema, SchemaRef};
+
+use super::error::SourceError;
+use super::{Batch, Format, OpenOptions, Progress, Source, SourceInfo, detect, open_file};
+use crate::value::Value;
+
+const NULL_PARTITION: &str = "__HIVE_DEFAULT_PARTITION__";
+
+struct Part {
+    path: PathBuf,
+    /// `key=value` segments between the directory and the file.
+    partitions: Vec<(String, Option<String>)>,
+}
+
+/// A partition field and whether all its values are integers.
+#[derive(Debug, Clone)]
+struct PartitionField {
+    name: String,
+    integer: bool,
+}
+
+pub struct DirSource {
+    info: SourceInfo,
+    parts: Vec<Part>,
+    partition_fields: Vec<PartitionField>,
+    options: OpenOptions,
+    next_part: usize,
+    current: Option<Box<dyn Source>>,
+    /// Bytes of the parts already finished, for progress.
+    bytes_done: u64,
+}
+
+pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source>, SourceError> {
+    let mut files = Vec::new();
+    collect_files(dir, &mut files)?;
+    files.sort();
+    if files.is_empty() {
+        return Err(SourceError::Directory {
+            path: dir.to_path_buf(),
+            message: "no data files (skipping _SUCCESS, *.crc, hidden and empty files)".into(),
+        });
+    }
+    let mut format: Option<(Format, PathBuf)> = None;
+    let mut parts = Vec::new();
+    let mut bytes = 0;
+    let mut schemas: Vec<(PathBuf, Option<SchemaRef>, Option<u64>)> = Vec::new();
+    let mut parquet_leaves = None;
+    for file in files {
+        let detected = detect::detect(&file, options.format)?;
+        match &format {
+            None => format = Some((detected.format, file.clone())),
+            Some((first, first_path)) if *first != detected.format => {
+                return Err(SourceError::Directory {
+                    path: file.clone(),
+                    message: format!(
+                        "this part is {} but {} is {}; all parts of a directory must be one format",
+                        detected.format.label(),
+                        first_path.display(),
+                        first.label()
+                    ),
+                });
+            }
+            Some(_) => {}
+        }
+        bytes += std::fs::metadata(&file).map_err(|e| SourceError::io(&file, e))?.len();
+        if !detected.format.is_text() {
+            let source = open_file(&file, options)?;
+            if parquet_leaves.is_none() {
+                parquet_leaves = source.info().parquet_leaves.clone();
+            }
+            schemas.push((file.clone(), source.info().schema.clone(), source.info().rows));
+        } else {
+            schemas.push((file.clone(), None, None));
+        }
+        let partitions = partition_segments(dir, &file);
+        parts.push(Part { path: file, partitions });
+    }
+    let (format, _) = format.expect("at least one part");
+    let partition_fields = partition_fields(&parts);
+    let first_schema = schemas[0].1.clone();
+    let schema = first_schema.as_ref().map(|s| with_partition_fields(s, &partition_fields));
+    let rows = schemas.iter().map(|(_, _, r)| *r).sum::<Option<u64>>();
+    let facts = super::Facts {
+        part_files: parts.iter().map(|p| relative(dir, &p.path)).collect(),
+        partition_fields: partition_fields.iter().map(|f| f.name.clone()).collect(),
+        schema_differences: schema_differences(dir, &schemas),
+        ..super::Facts::default()
+    };
+    let info = SourceInfo {
+        path: dir.to_path_buf(),
+        format,
+        compression: super::Compression::None,
+        bytes,
+        parts: parts.len(),
+        rows,
+        schema,
+        parquet_leaves,
+        facts,
+    };
+    Ok(Box::new(DirSource { info, parts, partition_fields, options, next_part: 0, current: None, bytes_done: 0 }))
+}
+
+fn skipped(name: &str) -> bool {
+    name.starts_with('.') || name.starts_with('_') || name.ends_with(".crc")
+}
+
+fn collect_files(dir: &Path, out: &mut Vec<PathBuf>) -> Result<(), SourceError> {
+    let entries = std::fs::read_dir(dir).map_err(|e| SourceError::io(dir, e))?;
+    for entry in entries {
+        let entry = entry.map_err(|e| SourceError::io(dir, e))?;
+        let name = entry.file_name().to_string_lossy().to_string();
+        if skipped(&name) {
+            continue;
+        }
+        let path = entry.path();
+        let meta = std::fs::metadata(&path).map_err(|e| SourceError::io(&path, e))?;
+        if meta.is_dir() {
+            collect_files(&path, out)?;
+        } else if meta.len() > 0 {
+            out.push(path);
+        }
+    }
+    Ok(())
+}
+
+fn relative(dir: &Path, file: &Path) -> String {
+    file.strip_prefix(dir).unwrap_or(file).display().to_string()
+}
+
+fn partition_segments(dir: &Path, file: &Path) -> Vec<(String, Option<String>)> {
+    let rel = file.strip_prefix(dir).unwrap_or(file);
+    let parent = rel.parent().map(Path::to_path_buf).unwrap_or_default();
+    parent
+        .components()
+        .filter_map(|c| {
+            let seg = c.as_os_str().to_string_lossy();
+            let (k, v) = seg.split_once('=')?;
+            let value = (v != NULL_PARTITION).then(|| percent_decode(v));
+            Some((k.to_string(), value))
+        })
+        .collect()
+}
+
+/// Hive escapes special characters in partition values as `%XX`.
+fn percent_decode(s: &str) -> String {
+    let bytes = s.as_bytes();
+    let mut out = Vec::with_capacity(bytes.len());
+    let mut i = 0;
+    while i < bytes.len() {
+        let hex = |b: u8| (b as char).to_digit(16);
+        if bytes[i] == b'%'
+            && i + 2 < bytes.len()
+            && let (Some(hi), Some(lo)) = (hex(bytes[i + 1]), hex(bytes[i + 2]))
+        {
+            out.push((hi * 16 + lo) as u8);
+            i += 3;
+            continue;
+        }
+        out.push(bytes[i]);
+        i += 1;
+    }
+    String::from_utf8_lossy(&out).into_owned()
+}
+
+fn partition_fields(parts: &[Part]) -> Vec<PartitionField> {
+    let mut fields: Vec<PartitionField> = Vec::new();
+    for part in parts {
+        for (key, value) in &part.partitions {
+            let is_int = value.as_deref().is_none_or(|v| v.parse::<i64>().is_ok());
+            match fields.iter_mut().find(|f| &f.name == key) {
+                Some(f) => f.integer &= is_int,
+                None => fields.push(PartitionField { name: key.clone(), integer: is_int }),
+            }
+        }
+    }
+    fields
+}
+
+fn partition_type(f: &PartitionField) -> DataType {
+    if f.integer { DataType::Int64 } else { DataType::Utf8 }
+}
+
+fn with_partition_fields(schema: &Schema, fields: &[PartitionField]) -> SchemaRef {
+    let mut all: Vec<Field> = schema.fields().iter().map(|f| f.as_ref().clone()).collect();
+    for f in fields {
+        if schema.field_with_name(&f.name).is_err() {
+            all.push(Field::new(&f.name, partition_type(f), true));
+        }
+    }
+    Arc::new(Schema::new_with_metadata(all, schema.metadata().clone()))
+}
+
+fn schema_differences(dir: &Path, schemas: &[(PathBuf, Option<SchemaRef>, Option<u64>)]) -> Vec<String> {
+    let Some((first_path, Some(first), _)) = schemas.first() else { return Vec::new() };
+    let first_name = relative(dir, first_path);
+    let mut out = Vec::new();
+    for (path, schema, _) in &schemas[1..] {
+        let Some(schema) = schema else { continue };
+        let name = relative(dir, path);
+        for field in first.fields() {
+            match schema.field_with_name(field.name()) {
+                Err(_) => out.push(format!("{name}: lacks field `{}` (present in {first_name})", field.name())),
+                Ok(other) if other.data_type() != field.data_type() => out.push(format!(
+                    "{name}: field `{}` is {} here but {} in {first_name}",
+                    field.name(),
+                    other.data_type(),
+                    field.data_type()
+                )),
+                Ok(other) if other.is_nullable() != field.is_nullable() => out.push(format!(
+                    "{name}: field `{}` is {} here but {} in {first_name}",
+                    field.name(),
+                    nullability(other.is_nullable()),
+                    nullability(field.is_nullable())
+                )),
+                Ok(_) => {}
+            }
+        }
+        for field in schema.fields() {
+            if first.field_with_name(field.name()).is_err() {
+                out.push(format!("{name}: adds field `{}` ({}) not in {first_name}", field.name(), field.data_type()));
+            }
+        }
+    }
+    out
+}
+
+fn nullability(nullable: bool) -> &'static str {
+    if nullable { "nullable" } else { "not nullable" }
+}
+
+impl DirSource {
+    fn add_partitions(&self, part: &Part, batch: Batch) -> Result<Batch, SourceError> {
+        if part.partitions.is_empty() {
+            return Ok(batch);
+        }
+        let value_of = |field: &PartitionField| part.partitions.iter().find(|(k, _)| *k == field.name).and_then(|(_, v)| v.clone());
+        match batch {
+            Batch::Rows(mut rows) => {
+                for row in &mut rows {
+                    let Value::Object(members) = row else { continue };
+                    for field in &self.partition_fields {
+                        if members.iter().any(|(k, _)| *k == field.name) {
+                            continue;
+                        }
+                        let value = match value_of(field) {
+                            None => Value::Null,
+                            Some(v) if field.integer => v.parse().map(Value::Int).unwrap_or(Value::Str(v)),
+                            Some(v) => Value::Str(v),
+                        };
+                        members.push((field.name.clone(), value));
+                    }
+                }
+                Ok(Batch::Rows(rows))
+            }
+            Batch::Arrow(batch) => {
+                let n = batch.num_rows();
+                let mut fields: Vec<Field> = batch.schema().fields().iter().map(|f| f.as_ref().clone()).collect();
+                let mut columns: Vec<ArrayRef> = batch.columns().to_vec();
+                for field in &self.partition_fields {
+                    if batch.schema().field_with_name(&field.name).is_ok() {
+                        continue;
+                    }
+                    let value = value_of(field);
+                    let column: ArrayRef = if field.integer {
+                        let v = value.and_then(|v| v.parse::<i64>().ok());
+                        Arc::new(Int64Array::from(vec![v; n]))
+                    } else {
+                        Arc::new(StringArray::from(vec![value; n]))
+                    };
+                    fields.push(Field::new(&field.name, partition_type(field), true));
+                    columns.push(column);
+                }
+                let schema = Arc::new(Schema::new_with_metadata(fields, batch.schema().metadata().clone()));
+                RecordBatch::try_new(schema, columns).map(Batch::Arrow).map_err(|e| SourceError::Directory {
+                    path: part.path.clone(),
+                    message: format!("cannot add partition fields: {e}"),
+                })
+            }
+        }
+    }
+}
+
+impl Source for DirSource {
+    fn info(&self) -> &SourceInfo {
+        &self.info
+    }
+
+    fn progress(&self) -> Progress {
+        let current = self.current.as_ref().map_or(0, |c| {
+            let p = c.progress();
+            if p.total == 0 { 0 } else { c.info().bytes * p.done.min(p.total) / p.total }
+        });
+        Progress { done: self.bytes_done + current, total: self.info.bytes }
+    }
+
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        loop {
+            if self.current.is_none() {
+                if self.next_part >= self.parts.len() {
+                    return Ok(None);
+                }
+                let part = &self.parts[self.next_part];
+                self.current = Some(open_file(&part.path, self.options)?);
+            }
+            let current = self.current.as_mut().expect("set above");
+            match current.next_batch()? {
+                Some(batch) => {
+                    let part = &self.parts[self.next_part];
+                    return self.add_partitions(part, batch).map(Some);
+                }
+                None => {
+                    self.bytes_done += current.info().bytes;
+                    self.current = None;
+                    self.next_part += 1;
+                }
+            }
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn partition_segments_are_parsed_and_decoded() {
+        let dir = Path::new("/data");
+        let file = Path::new("/data/year=2024/city=North%20Bay/part-0.json");
+        assert_eq!(
+            partition_segments(dir, file),
+            vec![("year".into(), Some("2024".into())), ("city".into(), Some("North Bay".into()))]
+        );
+        let file = Path::new("/data/year=__HIVE_DEFAULT_PARTITION__/p.json");
+        assert_eq!(partition_segments(dir, file), vec![("year".into(), None)]);
+    }
+
+    #[test]
+    fn bookkeeping_files_are_skipped() {
+        for name in ["_SUCCESS", ".part-0.crc", "part-0.parquet.crc", ".hidden", "_common_metadata"] {
+            assert!(skipped(name), "{name}");
+        }
+        assert!(!skipped("part-00000.parquet"));
+    }
+}

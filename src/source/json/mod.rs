@@ -1,0 +1,235 @@
+//! JSON and JSON Lines sources, streamed record by record.
+//!
+//! Rows: each line of JSON Lines; each element of a top-level array; a lone
+//! object or scalar is one row. An object is a row as it stands; any other
+//! value becomes a row with one field named `value`.
+
+pub mod frame;
+pub mod parse;
+
+use std::io::{BufRead, Read};
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+use std::sync::atomic::{AtomicU64, Ordering};
+
+use super::decompress::{Compression, open_decompressed};
+use super::error::{Position, SourceError, line_column, read_failure};
+use super::limits::MAX_RECORD_BYTES;
+use super::{Batch, Facts, Format, Progress, Source, SourceInfo, TEXT_BATCH_ROWS};
+use crate::value::Value;
+use frame::{ArrayFramer, FrameError, LineFramer, Start};
+
+/// Name of the single field holding a row that is not an object.
+pub const VALUE_FIELD: &str = "value";
+
+/// Bytes of text after which a batch is closed even if it has few rows.
+const BATCH_BYTES: usize = 8 * 1024 * 1024;
+
+enum Framer {
+    Lines(LineFramer<Box<dyn BufRead + Send>>),
+    Array(ArrayFramer<Box<dyn BufRead + Send>>),
+    /// A single document that is not an array; taken on the first call.
+    Single(Option<Box<dyn BufRead + Send>>),
+}
+
+pub struct JsonSource {
+    info: SourceInfo,
+    framer: Framer,
+    file_bytes_read: Arc<AtomicU64>,
+    buf: Vec<u8>,
+    finished: bool,
+}
+
+impl JsonSource {
+    pub fn open(path: &Path, format: Format, compression: Compression, bytes: u64) -> Result<Self, SourceError> {
+        let opened = open_decompressed(path, compression)?;
+        let mut reader = opened.reader;
+        let framer = match format {
+            Format::JsonLines => Framer::Lines(LineFramer::new(reader)),
+            _ => {
+                if first_significant_byte(&mut reader, path)? == Some(b'[') {
+                    Framer::Array(ArrayFramer::new(reader))
+                } else {
+                    Framer::Single(Some(reader))
+                }
+            }
+        };
+        let info = SourceInfo {
+            path: path.to_path_buf(),
+            format,
+            compression,
+            bytes,
+            parts: 1,
+            rows: None,
+            schema: None,
+            parquet_leaves: None,
+            facts: Facts::default(),
+        };
+        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), finished: false })
+    }
+
+    fn path(&self) -> PathBuf {
+        self.info.path.clone()
+    }
+
+    fn frame_error(&self, e: FrameError) -> SourceError {
+        let path = self.path();
+        let format = self.info.format;
+        match e {
+            FrameError::Io(io, at) => read_failure(&path, format, text_position(at), io),
+            FrameError::Syntax(msg, at) => SourceError::malformed(&path, format, text_position(at), msg),
+            FrameError::TooLong(at) => SourceError::Limit {
+                path,
+                position: text_position(at),
+                message: format!("a record is longer than {MAX_RECORD_BYTES} bytes (limit against hostile files)"),
+            },
+        }
+    }
+
+    fn syntax_error(&self, record: &[u8], start: Start, e: parse::SyntaxError) -> SourceError {
+        let (line, column) = line_column(record, e.offset);
+        let position = Position::Text {
+            line: start.line + line - 1,
+            column: if line == 1 { start.column + column - 1 } else { column },
+            byte: start.byte + e.offset as u64,
+        };
+        SourceError::malformed(&self.info.path, self.info.format, position, e.message)
+    }
+
+    fn read_single(&mut self, mut reader: Box<dyn BufRead + Send>) -> Result<Value, SourceError> {
+        let mut doc = Vec::new();
+        let limit = MAX_RECORD_BYTES as u64 + 1;
+        reader
+            .by_ref()
+            .take(limit)
+            .read_to_end(&mut doc)
+            .map_err(|e| read_failure(&self.info.path, self.info.format, Position::Byte(doc.len() as u64), e))?;
+        if doc.len() as u64 >= limit {
+            return Err(SourceError::Limit {
+                path: self.path(),
+                position: Position::File,
+                message: format!(
+                    "a single JSON document larger than {MAX_RECORD_BYTES} bytes that is not an array (limit against hostile files)"
+                ),
+            });
+        }
+        let (body, bom) = match doc.strip_prefix(&[0xEF, 0xBB, 0xBF][..]) {
+            Some(rest) => (rest, 3u64),
+            None => (&doc[..], 0),
+        };
+        let start = Start { byte: bom, line: 1, column: 1 + bom };
+        parse::parse_value(body).map_err(|e| self.syntax_error(body, start, e))
+    }
+}
+
+/// Wraps a parsed value as a row.
+pub fn as_row(value: Value) -> Value {
+    match value {
+        Value::Object(_) => value,
+        other => Value::Object(vec![(VALUE_FIELD.to_string(), other)]),
+    }
+}
+
+fn text_position(at: Start) -> Position {
+    Position::Text { line: at.line, column: at.column, byte: at.byte }
+}
+
+/// Peeks past a BOM and whitespace without consuming anything.
+fn first_significant_byte(reader: &mut Box<dyn BufRead + Send>, path: &Path) -> Result<Option<u8>, SourceError> {
+    let chunk = reader.fill_buf().map_err(|e| read_failure(path, Format::Json, Position::Byte(0), e))?;
+    let chunk = super::detect::strip_bom(chunk);
+    Ok(chunk.iter().copied().find(|&b| !parse::is_json_ws(b)))
+}
+
+impl Source for JsonSource {
+    fn info(&self) -> &SourceInfo {
+        &self.info
+    }
+
+    fn progress(&self) -> Progress {
+        Progress { done: self.file_bytes_read.load(Ordering::Relaxed), total: self.info.bytes }
+    }
+
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        if self.finished {
+            return Ok(None);
+        }
+        if let Framer::Single(reader) = &mut self.framer {
+            self.finished = true;
+            let Some(reader) = reader.take() else { return Ok(None) };
+            let value = self.read_single(reader)?;
+            return Ok(Some(Batch::Rows(vec![as_row(value)])));
+        }
+        let mut rows = Vec::new();
+        let mut text_bytes = 0usize;
+        let mut buf = std::mem::take(&mut self.buf);
+        while rows.len() < TEXT_BATCH_ROWS && text_bytes < BATCH_BYTES {
+            let next = match &mut self.framer {
+                Framer::Lines(f) => f.next_record(&mut buf),
+                Framer::Array(f) => f.next_record(&mut buf),
+                Framer::Single(_) => unreachable!("handled above"),
+            };
+            let start = match next {
+                Ok(Some(start)) => start,
+                Ok(None) => {
+                    self.finished = true;
+                    break;
+                }
+                Err(e) => {
+                    self.finished = true;
+                    return Err(self.frame_error(e));
+                }
+            };
+            text_bytes += buf.len();
+            match parse::parse_value(&buf) {
+                Ok(v) => rows.push(as_row(v)),
+                Err(e) => {
+                    self.finished = true;
+                    return Err(self.syntax_error(&buf, start, e));
+                }
+            }
+        }
+        self.buf = buf;
+        if rows.is_empty() && self.finished {
+            return Ok(None);
+        }
+        Ok(Some(Batch::Rows(rows)))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn read_all(name: &str, text: &str, format: Format) -> Result<Vec<Value>, SourceError> {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join(name);
+        std::fs::write(&path, text).unwrap();
+        let mut src = JsonSource::open(&path, format, Compression::None, text.len() as u64)?;
+        let mut rows = Vec::new();
+        while let Some(b) = src.next_batch()? {
+            let Batch::Rows(r) = b else { panic!("json gives rows") };
+            rows.extend(r);
+        }
+        Ok(rows)
+    }
+
+    #[test]
+    fn top_level_scalars_and_arrays_become_value_rows() {
+        let rows = read_all("a.json", "[{\"a\":1}, 2, [3]]", Format::Json).unwrap();
+        assert_eq!(rows.len(), 3);
+        assert_eq!(rows[1], Value::Object(vec![("value".into(), Value::Int(2))]));
+        let rows = read_all("s.json", " \"x\" ", Format::Json).unwrap();
+        assert_eq!(rows, vec![Value::Object(vec![("value".into(), Value::Str("x".into()))])]);
+    }
+
+    #[test]
+    fn errors_point_into_the_file() {
+        let e = read_all("l.jsonl", "{\"a\":1}\n{\"a\" 2}\n", Format::JsonLines).unwrap_err();
+        assert_eq!(e.to_string().split(": ").nth(1), Some("line 2, column 6 (byte 13)"), "{e}");
+        let e = read_all("a.json", "[\n {\"a\":1},\n {\"a\":}\n]", Format::Json).unwrap_err();
+        assert!(e.to_string().contains("line 3, column 7"), "{e}");
+        let e = read_all("d.json", "{\"a\":\n  tru}", Format::Json).unwrap_err();
+        assert!(e.to_string().contains("line 2, column 3"), "{e}");
+    }
+}

@@ -1,0 +1,312 @@
+//! Parquet source: facts from the footer alone, batches one row group at a
+//! time through `parquet`'s Arrow reader (so errors name the row group).
+
+use std::collections::{BTreeMap, BTreeSet, HashMap};
+use std::fs::File;
+use std::path::Path;
+use std::sync::Arc;
+
+use parquet::arrow::arrow_reader::{ArrowReaderMetadata, ArrowReaderOptions, ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder};
+use parquet::basic::{ConvertedType, LogicalType, Repetition};
+use parquet::errors::ParquetError;
+use parquet::file::metadata::ParquetMetaData;
+use parquet::schema::types::Type;
+
+use super::error::{Position, SourceError};
+use super::facts::{ColumnFacts, shorten_metadata_value};
+use super::guard;
+use super::{ARROW_BATCH_ROWS, Batch, Compression, Facts, Format, Progress, Source, SourceInfo};
+use crate::path;
+
+/// The Parquet side of a leaf column's declared type.
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+pub struct ParquetLeaf {
+    pub physical: String,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub logical: Option<String>,
+    pub repetition: String,
+}
+
+pub struct ParquetSource {
+    info: SourceInfo,
+    file: File,
+    metadata: ArrowReaderMetadata,
+    next_group: usize,
+    current: Option<GroupReader>,
+    rows_done: u64,
+    failed: bool,
+}
+
+/// The row group being read, and how many rows it has given so far.
+struct GroupReader {
+    group: usize,
+    reader: ParquetRecordBatchReader,
+    rows: u64,
+}
+
+const ENCRYPTED_FOOTER_MAGIC: &[u8] = b"PARE";
+
+impl ParquetSource {
+    pub fn open(path: &Path, bytes: u64) -> Result<Self, SourceError> {
+        let file = File::open(path).map_err(|e| SourceError::io(path, e))?;
+        if has_encrypted_footer(&file, bytes) {
+            return Err(SourceError::Encrypted { path: path.to_path_buf() });
+        }
+        let options = ArrowReaderOptions::new();
+        let metadata = guard::catch(|| ArrowReaderMetadata::load(&file, options))
+            .map_err(|panic| SourceError::malformed(path, Format::Parquet, Position::Footer, panic))?
+            .map_err(|e| footer_error(path, e))?;
+        let schema = metadata.schema().clone();
+        let parquet_meta = metadata.metadata().clone();
+        let facts = footer_facts(&parquet_meta);
+        let leaves = leaf_annotations(parquet_meta.file_metadata().schema_descr().root_schema());
+        let info = SourceInfo {
+            path: path.to_path_buf(),
+            format: Format::Parquet,
+            compression: Compression::None,
+            bytes,
+            parts: 1,
+            rows: Some(parquet_meta.file_metadata().num_rows().max(0) as u64),
+            schema: Some(schema),
+            parquet_leaves: Some(Arc::new(leaves)),
+            facts,
+        };
+        Ok(ParquetSource { info, file, metadata, next_group: 0, current: None, rows_done: 0, failed: false })
+    }
+
+    fn num_groups(&self) -> usize {
+        self.metadata.metadata().num_row_groups()
+    }
+
+    fn fail(&mut self, group: usize, message: String) -> SourceError {
+        self.failed = true;
+        let message = if message.to_lowercase().contains("encrypt") {
+            return SourceError::Encrypted { path: self.info.path.clone() };
+        } else {
+            message
+        };
+        SourceError::malformed(&self.info.path, Format::Parquet, Position::RowGroup(group), message)
+    }
+}
+
+fn has_encrypted_footer(file: &File, bytes: u64) -> bool {
+    use std::os::unix::fs::FileExt;
+    let mut tail = [0u8; 4];
+    bytes >= 8 && file.read_exact_at(&mut tail, bytes - 4).is_ok() && tail == ENCRYPTED_FOOTER_MAGIC
+}
+
+fn footer_error(path: &Path, e: ParquetError) -> SourceError {
+    let message = e.to_string();
+    if message.to_lowercase().contains("encrypt") {
+        return SourceError::Encrypted { path: path.to_path_buf() };
+    }
+    SourceError::malformed(path, Format::Parquet, Position::Footer, message)
+}
+
+/// Short codec name: "ZSTD" rather than "ZSTD(ZstdLevel(1))".
+fn codec_name(c: parquet::basic::Compression) -> String {
+    let full = format!("{c:?}");
+    full.split('(').next().unwrap_or(&full).to_string()
+}
+
+fn footer_facts(meta: &ParquetMetaData) -> Facts {
+    let mut codecs = BTreeSet::new();
+    let mut columns: Vec<ColumnFacts> = Vec::new();
+    for group in meta.row_groups() {
+        for (i, chunk) in group.columns().iter().enumerate() {
+            codecs.insert(codec_name(chunk.compression()));
+            if columns.len() <= i {
+                columns.push(ColumnFacts {
+                    path: chunk.column_path().string(),
+                    physical_type: chunk.column_type().to_string(),
+                    compressed_bytes: 0,
+                    uncompressed_bytes: 0,
+                });
+            }
+            columns[i].compressed_bytes += chunk.compressed_size().max(0) as u64;
+            columns[i].uncompressed_bytes += chunk.uncompressed_size().max(0) as u64;
+        }
+    }
+    let file_meta = meta.file_metadata();
+    let metadata: BTreeMap<String, String> = file_meta
+        .key_value_metadata()
+        .into_iter()
+        .flatten()
+        .map(|kv| (kv.key.clone(), shorten_metadata_value(kv.value.as_deref().unwrap_or(""))))
+        .collect();
+    Facts {
+        row_groups: Some(meta.num_row_groups()),
+        codecs: codecs.into_iter().collect(),
+        columns,
+        writer: file_meta.created_by().map(str::to_string),
+        metadata,
+        ..Facts::default()
+    }
+}
+
+/// Walks the Parquet schema tree and names each leaf with the field path
+/// the Arrow schema gives it, following the list and map layouts of the
+/// Parquet format's LogicalTypes.md (including its backward-compatibility
+/// rules for lists written without the three-level structure).
+pub fn leaf_annotations(root: &Type) -> HashMap<String, ParquetLeaf> {
+    let mut out = HashMap::new();
+    for field in root.get_fields() {
+        walk_field(field, &path::member("", field.name()), &mut out);
+    }
+    out
+}
+
+fn is_list(t: &Type) -> bool {
+    let info = t.get_basic_info();
+    matches!(info.logical_type_ref(), Some(LogicalType::List)) || info.converted_type() == ConvertedType::LIST
+}
+
+fn is_map(t: &Type) -> bool {
+    let info = t.get_basic_info();
+    matches!(info.logical_type_ref(), Some(LogicalType::Map))
+        || matches!(info.converted_type(), ConvertedType::MAP | ConvertedType::MAP_KEY_VALUE)
+}
+
+fn is_repeated(t: &Type) -> bool {
+    let info = t.get_basic_info();
+    info.has_repetition() && info.repetition() == Repetition::REPEATED
+}
+
+fn walk_field(t: &Type, at: &str, out: &mut HashMap<String, ParquetLeaf>) {
+    if is_repeated(t) {
+        // A repeated field outside a LIST annotation is a list of itself.
+        walk_inner(t, &path::element(at), out);
+    } else {
+        walk_inner(t, at, out);
+    }
+}
+
+/// Like `walk_field` but ignoring the field's own repetition.
+fn walk_inner(t: &Type, at: &str, out: &mut HashMap<String, ParquetLeaf>) {
+    if !t.is_group() {
+        out.insert(at.to_string(), leaf_of(t));
+        return;
+    }
+    let fields = t.get_fields();
+    if is_list(t) && fields.len() == 1 {
+        let repeated = &fields[0];
+        let element_at = path::element(at);
+        let two_level = !repeated.is_group()
+            || repeated.get_fields().len() > 1
+            || repeated.name() == "array"
+            || repeated.name() == format!("{}_tuple", t.name());
+        if two_level {
+            walk_inner(repeated, &element_at, out);
+        } else {
+            walk_field(&repeated.get_fields()[0], &element_at, out);
+        }
+        return;
+    }
+    if is_map(t) && fields.len() == 1 && fields[0].is_group() {
+        let kv = fields[0].get_fields();
+        if let Some(key) = kv.first() {
+            walk_field(key, &path::map_key(at), out);
+        }
+        if let Some(value) = kv.get(1) {
+            walk_field(value, &path::map_value(at), out);
+        }
+        return;
+    }
+    for child in fields {
+        walk_field(child, &path::member(at, child.name()), out);
+    }
+}
+
+fn leaf_of(t: &Type) -> ParquetLeaf {
+    let info = t.get_basic_info();
+    let logical = info.logical_type_ref().map(logical_name).or_else(|| match info.converted_type() {
+        ConvertedType::NONE => None,
+        c => Some(format!("{c}")),
+    });
+    let repetition = if info.has_repetition() { format!("{}", info.repetition()) } else { "REQUIRED".into() };
+    ParquetLeaf { physical: format!("{}", t.get_physical_type()), logical, repetition }
+}
+
+fn logical_name(l: &LogicalType) -> String {
+    let unit = |u: &parquet::basic::TimeUnit| {
+        let full = format!("{u:?}");
+        full.split('(').next().unwrap_or(&full).to_string()
+    };
+    match l {
+        LogicalType::String => "STRING".into(),
+        LogicalType::Enum => "ENUM".into(),
+        LogicalType::Decimal(d) => format!("DECIMAL({}, {})", d.precision, d.scale),
+        LogicalType::Date => "DATE".into(),
+        LogicalType::Time(t) => format!("TIME({}, adjusted_to_utc={})", unit(&t.unit), t.is_adjusted_to_u_t_c),
+        LogicalType::Timestamp(t) => {
+            format!("TIMESTAMP({}, adjusted_to_utc={})", unit(&t.unit), t.is_adjusted_to_u_t_c)
+        }
+        LogicalType::Integer(i) => format!("INTEGER({}, {})", i.bit_width, if i.is_signed { "signed" } else { "unsigned" }),
+        LogicalType::Json => "JSON".into(),
+        LogicalType::Bson => "BSON".into(),
+        LogicalType::Uuid => "UUID".into(),
+        LogicalType::Float16 => "FLOAT16".into(),
+        other => {
+            let full = format!("{other:?}");
+            full.split(['(', ' ', '{']).next().unwrap_or(&full).to_uppercase()
+        }
+    }
+}
+
+impl Source for ParquetSource {
+    fn info(&self) -> &SourceInfo {
+        &self.info
+    }
+
+    fn progress(&self) -> Progress {
+        Progress { done: self.rows_done, total: self.info.rows.unwrap_or(0) }
+    }
+
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        loop {
+            if self.failed {
+                return Ok(None);
+            }
+            if self.current.is_none() {
+                if self.next_group >= self.num_groups() {
+                    return Ok(None);
+                }
+                let group = self.next_group;
+                self.next_group += 1;
+                let file = self.file.try_clone().map_err(|e| SourceError::io(&self.info.path, e))?;
+                let metadata = self.metadata.clone();
+                let built = guard::catch(move || {
+                    ParquetRecordBatchReaderBuilder::new_with_metadata(file, metadata)
+                        .with_row_groups(vec![group])
+                        .with_batch_size(ARROW_BATCH_ROWS)
+                        .build()
+                });
+                match built {
+                    Ok(Ok(reader)) => self.current = Some(GroupReader { group, reader, rows: 0 }),
+                    Ok(Err(e)) => return Err(self.fail(group, e.to_string())),
+                    Err(panic) => return Err(self.fail(group, panic)),
+                }
+            }
+            let current = self.current.as_mut().expect("set above");
+            let group = current.group;
+            match guard::catch(|| current.reader.next()) {
+                Ok(Some(Ok(batch))) => {
+                    current.rows += batch.num_rows() as u64;
+                    self.rows_done += batch.num_rows() as u64;
+                    return Ok(Some(Batch::Arrow(batch)));
+                }
+                Ok(Some(Err(e))) => return Err(self.fail(group, e.to_string())),
+                Ok(None) => {
+                    let read = current.rows;
+                    let stated = self.metadata.metadata().row_group(group).num_rows().max(0) as u64;
+                    if read != stated {
+                        let message = format!("the footer states {stated} rows but the data holds {read}");
+                        return Err(self.fail(group, message));
+                    }
+                    self.current = None;
+                }
+                Err(panic) => return Err(self.fail(group, panic)),
+            }
+        }
+    }
+}
