@@ -5,6 +5,7 @@ use std::collections::HashMap;
 use arrow_schema::{DataType, Field, Schema};
 use serde::Serialize;
 
+use super::from_arrow::member_names;
 use super::{FieldShape, Role};
 use crate::source::parquet::ParquetLeaf;
 
@@ -22,8 +23,9 @@ pub struct Declared {
 
 /// Creates the field tree the schema declares under `root`.
 pub fn seed_from_schema(root: &mut FieldShape, schema: &Schema, leaves: Option<&HashMap<String, ParquetLeaf>>) {
-    for field in schema.fields() {
-        let child = root.child_mut(field.name(), Role::Member);
+    let names = member_names(schema.fields());
+    for (field, key) in schema.fields().iter().zip(&names) {
+        let child = root.child_mut_named(key, field.name(), Role::Member);
         seed_field(child, field, leaves);
     }
 }
@@ -41,14 +43,14 @@ fn seed_field(node: &mut FieldShape, field: &Field, leaves: Option<&HashMap<Stri
 fn seed_children(node: &mut FieldShape, data_type: &DataType, leaves: Option<&HashMap<String, ParquetLeaf>>) {
     match data_type {
         DataType::Struct(fields) => {
-            for f in fields {
-                let child = node.child_mut(f.name(), Role::Member);
+            for (f, key) in fields.iter().zip(member_names(fields)) {
+                let child = node.child_mut_named(&key, f.name(), Role::Member);
                 seed_field(child, f, leaves);
             }
         }
         DataType::Union(fields, _) => {
-            for (_, f) in fields.iter() {
-                let child = node.child_mut(f.name(), Role::Variant);
+            for ((_, f), key) in fields.iter().zip(member_names(fields.iter().map(|(_, f)| f))) {
+                let child = node.child_mut_named(&key, f.name(), Role::Variant);
                 seed_field(child, f, leaves);
             }
         }

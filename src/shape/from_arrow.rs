@@ -15,15 +15,16 @@ use super::{FieldShape, Kind, Role};
 
 pub fn observe_batch(root: &mut FieldShape, batch: &RecordBatch) {
     let schema = batch.schema();
-    for (field, column) in schema.fields().iter().zip(batch.columns()) {
-        let child = child_for(root, field, Role::Member);
+    let names = member_names(schema.fields());
+    for ((field, column), name) in schema.fields().iter().zip(batch.columns()).zip(&names) {
+        let child = child_for(root, name, field, Role::Member);
         observe_array(child, column.as_ref(), None);
     }
 }
 
 /// The child for `field`, declaring its type if the schema seed did not.
-fn child_for<'a>(node: &'a mut FieldShape, field: &Field, role: Role) -> &'a mut FieldShape {
-    let child = node.child_mut(field.name(), role);
+fn child_for<'a>(node: &'a mut FieldShape, key: &str, field: &Field, role: Role) -> &'a mut FieldShape {
+    let child = node.child_mut_named(key, field.name(), role);
     if child.declared.is_none() {
         child.declared = Some(Declared {
             arrow: field.data_type().to_string(),
@@ -33,6 +34,20 @@ fn child_for<'a>(node: &'a mut FieldShape, field: &Field, role: Role) -> &'a mut
         });
     }
     child
+}
+
+/// Member names, with a repeated name (Arrow allows them) told apart as
+/// `name#2`, `name#3`… so each field keeps its own place in the tree.
+pub fn member_names<'a>(fields: impl IntoIterator<Item = &'a arrow_schema::FieldRef>) -> Vec<String> {
+    let mut seen: std::collections::HashMap<&str, usize> = std::collections::HashMap::new();
+    fields
+        .into_iter()
+        .map(|f| {
+            let n = seen.entry(f.name().as_str()).or_insert(0);
+            *n += 1;
+            if *n == 1 { f.name().clone() } else { format!("{}#{n}", f.name()) }
+        })
+        .collect()
 }
 
 pub fn kind_of(data_type: &DataType) -> Kind {
@@ -118,8 +133,9 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Struct(fields) => {
             node.kinds.add(Kind::Object, n);
             let s = array.as_struct();
-            for (field, column) in fields.iter().zip(s.columns()) {
-                let child = child_for(node, field, Role::Member);
+            let names = member_names(fields);
+            for ((field, column), name) in fields.iter().zip(s.columns()).zip(&names) {
+                let child = child_for(node, name, field, Role::Member);
                 observe_array(child, column.as_ref(), present);
             }
         }
@@ -128,28 +144,28 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             let l = array.as_list::<i32>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
         }
         LargeList(field) => {
             node.kinds.add(Kind::Array, n);
             let l = array.as_list::<i64>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
         }
         ListView(field) => {
             node.kinds.add(Kind::Array, n);
             let l = array.as_list_view::<i32>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
         }
         LargeListView(field) => {
             node.kinds.add(Kind::Array, n);
             let l = array.as_list_view::<i64>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
         }
         FixedSizeList(field, size) => {
             node.kinds.add(Kind::Array, n);
@@ -157,7 +173,7 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             let size = *size as usize;
             let ranges = positions(present, l.len()).map(|i| (i * size, size));
             let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
         }
         Map(_, _) => {
             node.kinds.add(Kind::Map, n);
@@ -168,13 +184,14 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             if let DataType::Struct(kv) = entries.data_type()
                 && kv.len() == 2
             {
-                observe_array(child_for(node, &kv[0], Role::MapKey), entries.column(0).as_ref(), Some(&mask));
-                observe_array(child_for(node, &kv[1], Role::MapValue), entries.column(1).as_ref(), Some(&mask));
+                observe_array(child_for(node, kv[0].name(), &kv[0], Role::MapKey), entries.column(0).as_ref(), Some(&mask));
+                observe_array(child_for(node, kv[1].name(), &kv[1], Role::MapValue), entries.column(1).as_ref(), Some(&mask));
             }
         }
         Union(fields, mode) => {
             let u = array.as_union();
-            for (type_id, field) in fields.iter() {
+            let names = member_names(fields.iter().map(|(_, f)| f));
+            for ((type_id, field), name) in fields.iter().zip(&names) {
                 let chosen: Vec<usize> = positions(present, u.len()).filter(|&i| u.type_id(i) == type_id).collect();
                 node.kinds.add(kind_of(field.data_type()), chosen.len() as u64);
                 let child_array = u.child(type_id);
@@ -183,7 +200,7 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
                     UnionMode::Dense => chosen.iter().map(|&i| u.value_offset(i)).collect(),
                 };
                 let mask = ranges_mask(child_array.len(), child_positions.into_iter().map(|p| (p, 1)));
-                let child = child_for(node, field, Role::Variant);
+                let child = child_for(node, name, field, Role::Variant);
                 observe_array(child, child_array.as_ref(), Some(&mask));
             }
         }

@@ -63,6 +63,9 @@ pub struct FieldShape {
     pub missing: u64,
     pub examples: BTreeMap<Kind, Vec<Example>>,
     pub children: Vec<FieldShape>,
+    /// The name as placed in the parent (differs from `name` only for a
+    /// repeated field name: `name#2`).
+    key: String,
     index: HashMap<String, usize>,
 }
 
@@ -79,6 +82,7 @@ impl FieldShape {
             missing: 0,
             examples: BTreeMap::new(),
             children: Vec::new(),
+            key: name.to_string(),
             index: HashMap::new(),
         }
     }
@@ -93,18 +97,26 @@ impl FieldShape {
 
     /// The child with `role` and `name`, created on first sight.
     pub(crate) fn child_mut(&mut self, name: &str, role: Role) -> &mut FieldShape {
-        let key = child_key(name, role);
-        if let Some(&i) = self.index.get(&key) {
+        self.child_mut_named(name, name, role)
+    }
+
+    /// Like `child_mut`, for a child whose place in the tree (`key`, used in
+    /// its path) differs from its name: the second of two same-named fields.
+    pub(crate) fn child_mut_named(&mut self, key: &str, name: &str, role: Role) -> &mut FieldShape {
+        let index_key = child_key(key, role);
+        if let Some(&i) = self.index.get(&index_key) {
             return &mut self.children[i];
         }
         let path = match role {
-            Role::Member | Role::Variant => crate::path::member(&self.path, name),
+            Role::Member | Role::Variant => crate::path::member(&self.path, key),
             Role::Element => crate::path::element(&self.path),
             Role::MapKey => crate::path::map_key(&self.path),
             Role::MapValue => crate::path::map_value(&self.path),
         };
-        self.index.insert(key, self.children.len());
-        self.children.push(FieldShape::new(name, path, role));
+        self.index.insert(index_key, self.children.len());
+        let mut child = FieldShape::new(name, path, role);
+        child.key = key.to_string();
+        self.children.push(child);
         self.children.last_mut().expect("just pushed")
     }
 
@@ -167,7 +179,7 @@ impl FieldShape {
             mine.truncate(EXAMPLES_PER_KIND);
         }
         for child in &other.children {
-            self.child_mut(&child.name, child.role).merge(child);
+            self.child_mut_named(&child.key, &child.name, child.role).merge(child);
         }
     }
 

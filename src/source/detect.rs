@@ -59,6 +59,8 @@ pub struct Detected {
 }
 
 const PARQUET_MAGIC: &[u8] = b"PAR1";
+/// Parquet with an encrypted footer (Parquet modular encryption spec).
+const PARQUET_ENCRYPTED_MAGIC: &[u8] = b"PARE";
 const ARROW_FILE_MAGIC: &[u8] = b"ARROW1";
 const GZIP_MAGIC: &[u8] = &[0x1f, 0x8b];
 const ZSTD_MAGIC: &[u8] = &[0x28, 0xb5, 0x2f, 0xfd];
@@ -90,13 +92,18 @@ pub fn detect(path: &Path, forced: Option<FormatChoice>) -> Result<Detected, Sou
     if let Some(format) = binary {
         return Ok(Detected { format, compression });
     }
+    // Streams written before Arrow 0.15 lack the continuation marker, so
+    // their first bytes prove nothing; the extension decides.
+    if compression == Compression::None && matches!(extension_of(path).as_str(), "arrows" | "stream") {
+        return Ok(Detected { format: Format::ArrowStream, compression });
+    }
     let text = sniff_text(path, compression)?;
     let format = text_format(path, &text)?;
     Ok(Detected { format, compression })
 }
 
 fn binary_format(head: &[u8]) -> Option<Format> {
-    if head.starts_with(PARQUET_MAGIC) {
+    if head.starts_with(PARQUET_MAGIC) || head.starts_with(PARQUET_ENCRYPTED_MAGIC) {
         Some(Format::Parquet)
     } else if head.starts_with(ARROW_FILE_MAGIC) {
         Some(Format::ArrowFile)
@@ -118,6 +125,13 @@ fn looks_like_ipc_stream(head: &[u8]) -> bool {
     len > 0
 }
 
+/// A pre-0.15 stream starts with a little-endian metadata length; accepted
+/// only when the user forces `--format ipc`, and checked by the reader.
+fn head_is_legacy_ipc_stream(path: &Path) -> bool {
+    let mut head = [0u8; 4];
+    File::open(path).and_then(|mut f| f.read_exact(&mut head)).is_ok() && i32::from_le_bytes(head) > 0
+}
+
 fn check_forced(
     path: &Path,
     choice: FormatChoice,
@@ -136,6 +150,7 @@ fn check_forced(
         },
         FormatChoice::Ipc => match binary {
             Some(f @ (Format::ArrowFile | Format::ArrowStream)) => f,
+            None if head_is_legacy_ipc_stream(path) => Format::ArrowStream,
             _ => {
                 return Err(wrong(
                     Format::ArrowFile,

@@ -6,7 +6,11 @@ use std::fs::File;
 use std::path::Path;
 use std::sync::Arc;
 
-use parquet::arrow::arrow_reader::{ArrowReaderMetadata, ArrowReaderOptions, ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder};
+use arrow_schema::{DataType, Field, Schema};
+use parquet::arrow::arrow_reader::{
+    ArrowReaderMetadata, ArrowReaderOptions, ParquetRecordBatchReader, ParquetRecordBatchReaderBuilder, RowSelection,
+    RowSelector,
+};
 use parquet::basic::{ConvertedType, LogicalType, Repetition};
 use parquet::errors::ParquetError;
 use parquet::file::metadata::ParquetMetaData;
@@ -35,6 +39,9 @@ pub struct ParquetSource {
     current: Option<GroupReader>,
     rows_done: u64,
     failed: bool,
+    /// Columns encrypted under a plaintext footer: the schema is readable,
+    /// the data is not.
+    encrypted_columns: bool,
 }
 
 /// The row group being read, and how many rows it has given so far.
@@ -42,6 +49,8 @@ struct GroupReader {
     group: usize,
     reader: ParquetRecordBatchReader,
     rows: u64,
+    /// Strings and binaries are read with 64-bit offsets (after an overflow).
+    large_offsets: bool,
 }
 
 const ENCRYPTED_FOOTER_MAGIC: &[u8] = b"PARE";
@@ -59,6 +68,8 @@ impl ParquetSource {
         let schema = metadata.schema().clone();
         let parquet_meta = metadata.metadata().clone();
         let facts = footer_facts(&parquet_meta);
+        let encrypted_columns =
+            parquet_meta.row_groups().iter().flat_map(|g| g.columns()).any(|c| c.crypto_metadata().is_some());
         let leaves = leaf_annotations(parquet_meta.file_metadata().schema_descr().root_schema());
         let info = SourceInfo {
             path: path.to_path_buf(),
@@ -71,7 +82,7 @@ impl ParquetSource {
             parquet_leaves: Some(Arc::new(leaves)),
             facts,
         };
-        Ok(ParquetSource { info, file, metadata, next_group: 0, current: None, rows_done: 0, failed: false })
+        Ok(ParquetSource { info, file, metadata, next_group: 0, current: None, rows_done: 0, failed: false, encrypted_columns })
     }
 
     fn num_groups(&self) -> usize {
@@ -80,11 +91,6 @@ impl ParquetSource {
 
     fn fail(&mut self, group: usize, message: String) -> SourceError {
         self.failed = true;
-        let message = if message.to_lowercase().contains("encrypt") {
-            return SourceError::Encrypted { path: self.info.path.clone() };
-        } else {
-            message
-        };
         SourceError::malformed(&self.info.path, Format::Parquet, Position::RowGroup(group), message)
     }
 }
@@ -253,6 +259,66 @@ fn logical_name(l: &LogicalType) -> String {
     }
 }
 
+impl ParquetSource {
+    fn group_reader(&self, group: usize, large_offsets: bool, skip: u64) -> Result<GroupReader, String> {
+        let file = self.file.try_clone().map_err(|e| e.to_string())?;
+        let metadata = if large_offsets {
+            let schema = Arc::new(with_large_offsets(self.metadata.schema()));
+            let options = ArrowReaderOptions::new().with_schema(schema);
+            ArrowReaderMetadata::try_new(self.metadata.metadata().clone(), options).map_err(|e| e.to_string())?
+        } else {
+            self.metadata.clone()
+        };
+        let total = self.metadata.metadata().row_group(group).num_rows().max(0) as usize;
+        let batch_rows = if large_offsets { 16 } else { ARROW_BATCH_ROWS };
+        let built = guard::catch(move || {
+            let mut builder = ParquetRecordBatchReaderBuilder::new_with_metadata(file, metadata)
+                .with_row_groups(vec![group])
+                .with_batch_size(batch_rows);
+            if skip > 0 {
+                let skip = skip as usize;
+                builder = builder.with_row_selection(RowSelection::from(vec![
+                    RowSelector::skip(skip),
+                    RowSelector::select(total.saturating_sub(skip)),
+                ]));
+            }
+            builder.build()
+        });
+        match built {
+            Ok(Ok(reader)) => Ok(GroupReader { group, reader, rows: skip, large_offsets }),
+            Ok(Err(e)) => Err(e.to_string()),
+            Err(panic) => Err(panic),
+        }
+    }
+}
+
+fn is_offset_overflow(message: &str) -> bool {
+    message.contains("index overflow decoding byte array") || message.contains("offset overflow")
+}
+
+/// The same schema with `Utf8`/`Binary` widened to their 64-bit-offset forms.
+fn with_large_offsets(schema: &Schema) -> Schema {
+    let fields: Vec<Field> = schema.fields().iter().map(|f| widen_field(f)).collect();
+    Schema::new_with_metadata(fields, schema.metadata().clone())
+}
+
+fn widen_field(f: &Field) -> Field {
+    f.clone().with_data_type(widen(f.data_type()))
+}
+
+fn widen(t: &DataType) -> DataType {
+    match t {
+        DataType::Utf8 => DataType::LargeUtf8,
+        DataType::Binary => DataType::LargeBinary,
+        DataType::List(f) => DataType::List(Arc::new(widen_field(f))),
+        DataType::LargeList(f) => DataType::LargeList(Arc::new(widen_field(f))),
+        DataType::FixedSizeList(f, n) => DataType::FixedSizeList(Arc::new(widen_field(f)), *n),
+        DataType::Struct(fields) => DataType::Struct(fields.iter().map(|f| widen_field(f)).collect()),
+        DataType::Map(f, sorted) => DataType::Map(Arc::new(widen_field(f)), *sorted),
+        other => other.clone(),
+    }
+}
+
 impl Source for ParquetSource {
     fn info(&self) -> &SourceInfo {
         &self.info
@@ -263,6 +329,10 @@ impl Source for ParquetSource {
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        if self.encrypted_columns && !self.failed {
+            self.failed = true;
+            return Err(SourceError::Encrypted { path: self.info.path.clone() });
+        }
         loop {
             if self.failed {
                 return Ok(None);
@@ -273,18 +343,9 @@ impl Source for ParquetSource {
                 }
                 let group = self.next_group;
                 self.next_group += 1;
-                let file = self.file.try_clone().map_err(|e| SourceError::io(&self.info.path, e))?;
-                let metadata = self.metadata.clone();
-                let built = guard::catch(move || {
-                    ParquetRecordBatchReaderBuilder::new_with_metadata(file, metadata)
-                        .with_row_groups(vec![group])
-                        .with_batch_size(ARROW_BATCH_ROWS)
-                        .build()
-                });
-                match built {
-                    Ok(Ok(reader)) => self.current = Some(GroupReader { group, reader, rows: 0 }),
-                    Ok(Err(e)) => return Err(self.fail(group, e.to_string())),
-                    Err(panic) => return Err(self.fail(group, panic)),
+                match self.group_reader(group, false, 0) {
+                    Ok(reader) => self.current = Some(reader),
+                    Err(message) => return Err(self.fail(group, message)),
                 }
             }
             let current = self.current.as_mut().expect("set above");
@@ -295,12 +356,21 @@ impl Source for ParquetSource {
                     self.rows_done += batch.num_rows() as u64;
                     return Ok(Some(Batch::Arrow(batch)));
                 }
+                Ok(Some(Err(e))) if !current.large_offsets && is_offset_overflow(&e.to_string()) => {
+                    // A string column chunk beyond 2 GiB: read this row group
+                    // again with 64-bit offsets, after the rows already given.
+                    let skip = current.rows;
+                    match self.group_reader(group, true, skip) {
+                        Ok(reader) => self.current = Some(reader),
+                        Err(message) => return Err(self.fail(group, message)),
+                    }
+                }
                 Ok(Some(Err(e))) => return Err(self.fail(group, e.to_string())),
                 Ok(None) => {
                     let read = current.rows;
                     let stated = self.metadata.metadata().row_group(group).num_rows().max(0) as u64;
                     if read != stated {
-                        let message = format!("the footer states {stated} rows but the data holds {read}");
+                        let message = format!("its metadata states {stated} rows but the reader produced {read}");
                         return Err(self.fail(group, message));
                     }
                     self.current = None;

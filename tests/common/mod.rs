@@ -1,0 +1,67 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::AtomicBool;
+use std::sync::mpsc;
+use std::time::Duration;
+
+use plumbline::scan::{self, Scan, ScanOptions};
+use plumbline::source::{OpenOptions, SourceError};
+
+/// A folder of `../shared/corpus/`. When it is absent the tests say so
+/// loudly, and fail under CI (`CI=true`) rather than pass without checking.
+pub fn corpus(sub: &str) -> Option<PathBuf> {
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/corpus").join(sub);
+    if dir.is_dir() {
+        return Some(dir);
+    }
+    let message = format!("CORPUS MISSING: {} does not exist, so these checks did NOT run", dir.display());
+    if std::env::var("CI").is_ok_and(|v| v == "true") {
+        panic!("{message}");
+    }
+    eprintln!("\n*** {message} ***\n");
+    None
+}
+
+pub fn files_under(dir: &Path, keep: &dyn Fn(&Path) -> bool) -> Vec<PathBuf> {
+    let mut out = Vec::new();
+    let mut stack = vec![dir.to_path_buf()];
+    while let Some(d) = stack.pop() {
+        for entry in std::fs::read_dir(&d).unwrap() {
+            let path = entry.unwrap().path();
+            if path.is_dir() {
+                stack.push(path);
+            } else if keep(&path) {
+                out.push(path);
+            }
+        }
+    }
+    out.sort();
+    out
+}
+
+/// Scans `path` on another thread and fails the test if it takes longer
+/// than `limit` (a hang) or panics.
+pub fn scan_with_timeout(path: &Path, options: ScanOptions, limit: Duration) -> Result<Scan, SourceError> {
+    let (tx, rx) = mpsc::channel();
+    let owned = path.to_path_buf();
+    std::thread::spawn(move || {
+        let stop = AtomicBool::new(false);
+        let result = scan::scan_path(&owned, OpenOptions::default(), options, &stop, &mut |_| {});
+        let _ = tx.send(result);
+    });
+    match rx.recv_timeout(limit) {
+        Ok(result) => result,
+        Err(mpsc::RecvTimeoutError::Timeout) => panic!("{}: no answer within {limit:?} (a hang?)", path.display()),
+        Err(mpsc::RecvTimeoutError::Disconnected) => panic!("{}: the reader panicked", path.display()),
+    }
+}
+
+pub fn full(path: &Path) -> Result<Scan, SourceError> {
+    scan_with_timeout(path, ScanOptions::default(), Duration::from_secs(120))
+}
+
+pub fn shape_only(path: &Path) -> Result<Scan, SourceError> {
+    scan_with_timeout(path, ScanOptions { shape_only: true }, Duration::from_secs(30))
+}
