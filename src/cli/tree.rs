@@ -62,18 +62,33 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
     }
     out.push('\n');
 
-    let mut lines: Vec<(String, String, String, String)> = Vec::new();
+    let mut rows: Vec<[String; 5]> = vec![["field", "declared", "observed", "counts", "notes"].map(String::from)];
     scan.shape.walk(|f, depth| {
         let name = format!("{}{}", "  ".repeat(depth), display_name(f));
-        let counts = format!("{} present · {} null · {} missing", group_digits(f.present()), group_digits(f.nulls()), group_digits(f.missing));
-        lines.push((name, f.type_label(), counts, kinds_text(f, options)));
+        let declared = f.declared.as_ref().map_or("—".to_string(), |d| d.short_label());
+        let counts = format!(
+            "{} present · {} null · {} missing",
+            group_digits(f.present()),
+            group_digits(f.nulls()),
+            group_digits(f.missing)
+        );
+        rows.push([name, declared, crate::shape::observed_label(&f.kinds), counts, notes(f, options)]);
     });
-    let w_name = lines.iter().map(|l| l.0.chars().count()).max().unwrap_or(0).max(5);
-    let w_type = lines.iter().map(|l| l.1.chars().count()).max().unwrap_or(0).max(4);
-    let w_counts = lines.iter().map(|l| l.2.chars().count()).max().unwrap_or(0);
-    let _ = writeln!(out, "{:<w_name$}  {:<w_type$}  {:<w_counts$}  observed", "field", "type", "counts");
-    for (name, ty, counts, kinds) in lines {
-        let _ = writeln!(out, "{name:<w_name$}  {ty:<w_type$}  {counts:<w_counts$}  {kinds}");
+    let widths: Vec<usize> = (0..4).map(|c| rows.iter().map(|r| r[c].chars().count()).max().unwrap_or(0)).collect();
+    for r in rows {
+        let line = format!(
+            "{:<w0$}  {:<w1$}  {:<w2$}  {:<w3$}  {}",
+            r[0],
+            r[1],
+            r[2],
+            r[3],
+            r[4],
+            w0 = widths[0],
+            w1 = widths[1],
+            w2 = widths[2],
+            w3 = widths[3]
+        );
+        let _ = writeln!(out, "{}", line.trim_end());
     }
     out
 }
@@ -87,22 +102,26 @@ fn display_name(f: &FieldShape) -> String {
     }
 }
 
-fn kinds_text(f: &FieldShape, options: ReportOptions) -> String {
-    let mut text = crate::shape::observed_label(&f.kinds);
-    let forms: Vec<String> = f.kinds.forms.iter().map(|(name, n)| format!("{name} {}", group_digits(n))).collect();
+/// String forms that cover only some strings, and examples of minority kinds.
+fn notes(f: &FieldShape, options: ReportOptions) -> String {
+    let mut parts = Vec::new();
+    let strings = f.kinds.get(crate::shape::Kind::String);
+    let forms: Vec<String> = f
+        .kinds
+        .forms
+        .iter()
+        .filter(|&(_, n)| n < strings || f.kinds.unified() == crate::shape::Unified::Mixed)
+        .map(|(name, n)| format!("{name} {}", group_digits(n)))
+        .collect();
     if !forms.is_empty() {
-        text = format!("{text} (as text: {})", forms.join(", "));
+        parts.push(format!("text that reads as: {}", forms.join(", ")));
     }
     if !options.no_examples {
-        let examples: Vec<String> = f
-            .minority_examples()
-            .iter()
-            .map(|(k, e)| format!("row {} {}: {}", e.row, k.name(), e.value))
-            .collect();
+        let examples: Vec<String> =
+            f.minority_examples().iter().map(|(k, e)| format!("row {} {}: {}", e.row, k.name(), e.value)).collect();
         if !examples.is_empty() {
-            text = format!("{text}; e.g. {}", examples.join("; "));
+            parts.push(format!("e.g. {}", examples.join("; ")));
         }
     }
-    text
+    parts.join(" · ")
 }
-

@@ -62,7 +62,7 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
         let detected = detect::detect(&file, options.format)?;
         match &format {
             None => format = Some((detected.format, file.clone())),
-            Some((first, first_path)) if *first != detected.format => {
+            Some((first, first_path)) if !same_family(*first, detected.format) => {
                 return Err(SourceError::Directory {
                     path: file.clone(),
                     message: format!(
@@ -111,6 +111,12 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
         facts,
     };
     Ok(Box::new(DirSource { info, parts, partition_fields, options, next_part: 0, current: None, bytes_done: 0 }))
+}
+
+/// A one-line JSON Lines part looks like a JSON document; both give the same rows.
+fn same_family(a: Format, b: Format) -> bool {
+    let json = |f| matches!(f, Format::Json | Format::JsonLines);
+    a == b || (json(a) && json(b))
 }
 
 fn skipped(name: &str) -> bool {

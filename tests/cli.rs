@@ -1,0 +1,235 @@
+//! The `plumbline` binary as a user meets it: output, the JSON report's
+//! keys, exit codes, and one clear `error:` line for bad input.
+
+use std::io::Write;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use serde_json::Value;
+
+fn plumbline(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_plumbline")).args(args).output().expect("run plumbline")
+}
+
+fn sample(name: &str) -> String {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name).display().to_string()
+}
+
+fn stdout(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stdout).into_owned()
+}
+
+fn stderr(o: &Output) -> String {
+    String::from_utf8_lossy(&o.stderr).into_owned()
+}
+
+fn read_json(path: &Path) -> Value {
+    serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap()
+}
+
+/// Exactly one line on stderr, starting `error:`, and exit code 2.
+fn assert_one_error_line(o: &Output) -> String {
+    assert_eq!(o.status.code(), Some(2), "stdout: {}\nstderr: {}", stdout(o), stderr(o));
+    let err = stderr(o);
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(lines.len(), 1, "stderr: {err}");
+    assert!(lines[0].starts_with("error: "), "{err}");
+    lines[0].to_string()
+}
+
+#[test]
+fn profile_prints_the_field_tree_and_writes_the_report() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("report.json");
+    let o = plumbline(&["profile", &sample("deliveries.parquet"), "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("Parquet") && out.contains("3,000 rows") && out.contains("row groups: 3"), "{out}");
+    assert!(out.contains("    seq") && out.contains("int16"), "nested fields indented with their types:\n{out}");
+
+    let r = read_json(&report);
+    assert_eq!(r["plumbline_report"], 1);
+    assert_eq!(r["partial"], false);
+    assert_eq!(r["source"]["format"], "Parquet");
+    assert_eq!(r["source"]["rows"], 3000);
+    assert_eq!(r["source"]["parts"], 1);
+    assert_eq!(r["source"]["facts"]["row_groups"], 3);
+    assert_eq!(r["source"]["facts"]["codecs"][0], "ZSTD");
+    let fields = r["fields"].as_array().unwrap();
+    let eta = fields.iter().find(|f| f["path"] == "stops[].eta").expect("nested list field");
+    assert_eq!(eta["depth"], 2);
+    assert_eq!(eta["declared_type"], "Timestamp(µs, \"+00:00\")");
+    assert_eq!(eta["parquet"]["physical"], "INT64");
+    assert!(eta["parquet"]["logical"].as_str().unwrap().starts_with("TIMESTAMP(MICROS"));
+    let dropoff = fields.iter().find(|f| f["path"] == "dropoff").unwrap();
+    assert_eq!(dropoff["count"], 3000);
+    assert_eq!(dropoff["nulls"], 144);
+    assert_eq!(dropoff["missing"], 0);
+    for key in ["path", "depth", "declared_type", "kinds", "count", "nulls", "missing", "examples"] {
+        assert!(fields.iter().all(|f| f.get(key).is_some()), "every field has `{key}`");
+    }
+}
+
+#[test]
+fn json_report_keeps_nulls_apart_from_missing_keys_and_shows_mixed_examples() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", &sample("deliveries.jsonl"), "--json", report.to_str().unwrap()]);
+    assert!(o.status.success());
+    let r = read_json(&report);
+    let field = |p: &str| r["fields"].as_array().unwrap().iter().find(|f| f["path"] == p).unwrap().clone();
+    let note = field("note");
+    assert_eq!(note["declared_type"], Value::Null);
+    assert!(note["nulls"].as_u64().unwrap() > 0 && note["missing"].as_u64().unwrap() > 0);
+    assert_eq!(
+        note["count"].as_u64().unwrap(),
+        note["nulls"].as_u64().unwrap() + note["missing"].as_u64().unwrap() + note["kinds"]["string"].as_u64().unwrap()
+    );
+    let zip = field("zip_code");
+    assert!(zip["observed"].as_str().unwrap().starts_with("mixed"));
+    let examples = zip["examples"].as_array().unwrap();
+    assert!(!examples.is_empty() && examples.iter().all(|e| e["kind"] == "int"), "{examples:?}");
+
+    let quiet = dir.path().join("quiet.json");
+    let o = plumbline(&["profile", &sample("deliveries.jsonl"), "--no-examples", "--json", quiet.to_str().unwrap()]);
+    assert!(o.status.success());
+    assert!(!stdout(&o).contains("e.g. row"), "no data values in the output");
+    let q = read_json(&quiet);
+    assert_eq!(q["examples_included"], false);
+    assert!(q["fields"].as_array().unwrap().iter().all(|f| f["examples"].as_array().unwrap().is_empty()));
+}
+
+#[test]
+fn shape_only_reads_no_rows() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", &sample("deliveries.parquet"), "--shape-only", "--json", report.to_str().unwrap()]);
+    assert!(o.status.success());
+    assert!(stdout(&o).contains("schema and metadata only"));
+    let r = read_json(&report);
+    assert_eq!(r["shape_only"], true);
+    assert_eq!(r["partial"], false);
+    assert_eq!(r["source"]["rows"], 3000, "the footer's row count");
+    assert!(r["fields"].as_array().unwrap().iter().all(|f| f["kinds"].as_object().unwrap().is_empty()));
+
+    let o = plumbline(&["profile", &sample("deliveries.jsonl"), "--shape-only"]);
+    assert!(o.status.success());
+    assert!(stdout(&o).contains("PARTIAL: inferred from the first 1000 rows only"), "{}", stdout(&o));
+}
+
+#[test]
+fn an_existing_report_is_not_replaced_without_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("r.json");
+    std::fs::write(&report, "keep me").unwrap();
+    let o = plumbline(&["profile", &sample("deliveries.csv"), "--json", report.to_str().unwrap()]);
+    let line = assert_one_error_line(&o);
+    assert!(line.contains("already exists") && line.contains("--force"), "{line}");
+    assert_eq!(std::fs::read_to_string(&report).unwrap(), "keep me");
+    let o = plumbline(&["profile", &sample("deliveries.csv"), "--json", report.to_str().unwrap(), "--force"]);
+    assert!(o.status.success());
+    assert_eq!(read_json(&report)["source"]["format"], "CSV");
+}
+
+#[test]
+fn a_forced_format_is_checked() {
+    let line = assert_one_error_line(&plumbline(&["profile", &sample("deliveries.csv"), "--format", "parquet"]));
+    assert!(line.contains("deliveries.csv") && line.contains("not Parquet data"), "{line}");
+    let line = assert_one_error_line(&plumbline(&["profile", &sample("deliveries.parquet"), "--format", "jsonl"]));
+    assert!(line.contains("it is a Parquet file"), "{line}");
+    let o = plumbline(&["profile", &sample("deliveries.arrow"), "--format", "ipc"]);
+    assert!(o.status.success());
+}
+
+#[test]
+fn a_missing_file_is_one_error_line() {
+    let line = assert_one_error_line(&plumbline(&["profile", "/no/such/file.parquet"]));
+    assert!(line.contains("/no/such/file.parquet"), "{line}");
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let path = dir.join(name);
+    if let Some(parent) = path.parent() {
+        std::fs::create_dir_all(parent).unwrap();
+    }
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+#[test]
+fn a_file_broken_half_way_reports_what_was_read_as_partial() {
+    let dir = tempfile::tempdir().unwrap();
+    let mut text: String = (0..10).map(|i| format!("{{\"n\":{i}}}\n")).collect();
+    text.push_str("{\"n\": 10, \"oops\"}\n");
+    let path = write(dir.path(), "broken.jsonl", &text);
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", path.to_str().unwrap(), "--json", report.to_str().unwrap()]);
+    let line = assert_one_error_line(&o);
+    assert!(line.contains("broken.jsonl: line 11, column 17 (byte 96)"), "{line}");
+    assert!(stdout(&o).contains("PARTIAL"), "{}", stdout(&o));
+    let r = read_json(&report);
+    assert_eq!(r["partial"], true);
+    assert_eq!(r["source"]["rows"], 10);
+    assert!(r["coverage_note"].as_str().unwrap().contains("line 11"));
+}
+
+#[test]
+fn gzip_and_zstd_json_lines_are_read_streaming() {
+    let dir = tempfile::tempdir().unwrap();
+    let rows: String = (0..100).map(|i| format!("{{\"id\":{i},\"tag\":\"t{}\"}}\n", i % 3)).collect();
+    let gz = dir.path().join("rows.jsonl.gz");
+    let mut enc = flate2::write::GzEncoder::new(std::fs::File::create(&gz).unwrap(), flate2::Compression::default());
+    enc.write_all(rows.as_bytes()).unwrap();
+    enc.finish().unwrap();
+    let zst = dir.path().join("rows.jsonl.zst");
+    std::fs::write(&zst, zstd::encode_all(rows.as_bytes(), 3).unwrap()).unwrap();
+    for path in [gz, zst] {
+        let o = plumbline(&["profile", path.to_str().unwrap()]);
+        assert!(o.status.success(), "{}", stderr(&o));
+        assert!(stdout(&o).contains("JSON Lines") && stdout(&o).contains("100 rows"), "{}", stdout(&o));
+    }
+}
+
+#[test]
+fn a_directory_of_parts_is_one_source_with_partition_fields() {
+    let dir = tempfile::tempdir().unwrap();
+    write(dir.path(), "day=1/part-0.jsonl", "{\"a\":1}\n{\"a\":2}\n");
+    write(dir.path(), "day=2/part-0.jsonl", "{\"a\":3,\"b\":\"x\"}\n");
+    write(dir.path(), "_SUCCESS", "");
+    write(dir.path(), "day=1/.part-0.jsonl.crc", "checksum");
+    write(dir.path(), "day=2/empty.jsonl", "");
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", dir.path().to_str().unwrap(), "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r = read_json(&report);
+    assert_eq!(r["source"]["parts"], 2);
+    assert_eq!(r["source"]["rows"], 3);
+    assert_eq!(r["source"]["facts"]["partition_fields"][0], "day");
+    let fields = r["fields"].as_array().unwrap();
+    let day = fields.iter().find(|f| f["path"] == "day").unwrap();
+    assert_eq!(day["kinds"]["int"], 3);
+    let b = fields.iter().find(|f| f["path"] == "b").unwrap();
+    assert_eq!(b["missing"], 2);
+}
+
+#[test]
+fn parquet_parts_with_different_schemas_are_reported_field_by_field() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::copy(sample("deliveries.parquet"), dir.path().join("part-0.parquet")).unwrap();
+    std::fs::copy(sample("later/deliveries.parquet"), dir.path().join("part-1.parquet")).unwrap();
+    let o = plumbline(&["profile", dir.path().to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("part-1.parquet: field `rating` is Float32 here but Int8 in part-0.parquet"), "{out}");
+    assert!(out.contains("part-1.parquet: adds field `co2_grams` (Int32) not in part-0.parquet"), "{out}");
+    assert!(out.contains("4,500 rows"), "{out}");
+}
+
+#[test]
+fn mixed_formats_in_one_directory_are_an_error() {
+    let dir = tempfile::tempdir().unwrap();
+    write(dir.path(), "a.jsonl", "{\"a\":1}\n{\"a\":2}\n");
+    write(dir.path(), "b.csv", "x,y\n1,2\n");
+    let line = assert_one_error_line(&plumbline(&["profile", dir.path().to_str().unwrap()]));
+    assert!(line.contains("b.csv") && line.contains("one format"), "{line}");
+}

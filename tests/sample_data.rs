@@ -1,0 +1,58 @@
+//! The committed demo data is exactly what its seeded generator writes, and
+//! it shows what the README promises.
+
+#[path = "../sample-data/generate.rs"]
+mod generate;
+
+mod common;
+
+use std::path::Path;
+
+use plumbline::shape::Kind;
+
+fn sample(name: &str) -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
+}
+
+#[test]
+fn committed_files_match_the_generator() {
+    let dir = tempfile::tempdir().unwrap();
+    generate::write_all(dir.path()).unwrap();
+    for name in [
+        "deliveries.jsonl",
+        "deliveries.parquet",
+        "deliveries.arrow",
+        "deliveries.csv",
+        "later/deliveries.jsonl",
+        "later/deliveries.parquet",
+    ] {
+        let fresh = std::fs::read(dir.path().join(name)).unwrap();
+        let committed = std::fs::read(sample(name)).unwrap();
+        assert!(fresh == committed, "sample-data/{name} differs from the generator's output; run `cargo run --example make-sample-data`");
+    }
+}
+
+#[test]
+fn the_demo_shows_nesting_nulls_missing_and_mixed_kinds() {
+    let scan = common::full(&sample("deliveries.jsonl")).unwrap();
+    assert_eq!(scan.shape.rows, generate::FIRST_DROP_ROWS as u64);
+    let note = scan.shape.find("note").unwrap();
+    assert!(note.nulls() > 0 && note.missing > 0, "note has both nulls and missing keys");
+    let zip = scan.shape.find("zip_code").unwrap();
+    assert_eq!(zip.kinds.unified(), plumbline::shape::Unified::Mixed);
+    assert!(!zip.minority_examples().is_empty());
+    assert!(scan.shape.find("stops[].eta").unwrap().kinds.forms.timestamp > 0);
+    assert!(scan.shape.find("booked_local").unwrap().kinds.forms.timestamp_no_zone > 0);
+    let parquet = common::full(&sample("deliveries.parquet")).unwrap();
+    assert_eq!(parquet.shape.find("attributes{key}").unwrap().kinds.get(Kind::String) > 0, true);
+    assert!(parquet.shape.find("parcel.declared_value").unwrap().declared.as_ref().unwrap().arrow.contains("Decimal128(10, 2)"));
+}
+
+#[test]
+fn the_later_drop_drifts_as_described() {
+    let later = common::full(&sample("later/deliveries.jsonl")).unwrap();
+    assert!(later.shape.find("co2_grams").is_some(), "a field added");
+    assert!(later.shape.find("courier.vehicle").unwrap().missing > 0, "a field now sometimes missing");
+    let parquet = common::full(&sample("later/deliveries.parquet")).unwrap();
+    assert_eq!(parquet.shape.find("rating").unwrap().declared.as_ref().unwrap().arrow, "Float32", "a type changed");
+}
