@@ -233,3 +233,13 @@ fn mixed_formats_in_one_directory_are_an_error() {
     let line = assert_one_error_line(&plumbline(&["profile", dir.path().to_str().unwrap()]));
     assert!(line.contains("b.csv") && line.contains("one format"), "{line}");
 }
+
+#[test]
+fn a_ragged_csv_record_is_an_error_with_its_line_after_the_good_rows() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = write(dir.path(), "ragged.csv", "id,name\n1,ann\n2,bo\n3\n4,di\n");
+    let o = plumbline(&["profile", path.to_str().unwrap()]);
+    let line = assert_one_error_line(&o);
+    assert!(line.contains("ragged.csv: line 4") && line.contains("expected 2 fields"), "{line}");
+    assert!(stdout(&o).contains("2 rows") && stdout(&o).contains("PARTIAL"), "{}", stdout(&o));
+}

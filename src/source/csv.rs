@@ -154,6 +154,8 @@ pub struct CsvSource {
     file_bytes_read: Arc<AtomicU64>,
     record: csv::StringRecord,
     finished: bool,
+    /// An error met after some rows of a batch: those rows go out first.
+    pending_error: Option<SourceError>,
 }
 
 impl CsvSource {
@@ -194,7 +196,7 @@ impl CsvSource {
                 ..Facts::default()
             },
         };
-        Ok(CsvSource { info, reader, columns, file_bytes_read: opened.file_bytes_read, record, finished: false })
+        Ok(CsvSource { info, reader, columns, file_bytes_read: opened.file_bytes_read, record, finished: false, pending_error: None })
     }
 
     /// The column names in file order.
@@ -281,38 +283,60 @@ impl Source for CsvSource {
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        if let Some(e) = self.pending_error.take() {
+            return Err(e);
+        }
         if self.finished {
             return Ok(None);
         }
         let mut rows = Vec::with_capacity(TEXT_BATCH_ROWS);
         while rows.len() < TEXT_BATCH_ROWS {
-            let got = self.reader.read_record(&mut self.record).map_err(|e| {
-                self.finished = true;
-                csv_error(&self.info.path, self.info.format, e)
-            })?;
-            if !got {
-                self.finished = true;
-                break;
+            match self.read_row() {
+                Ok(Some(row)) => rows.push(row),
+                Ok(None) => {
+                    self.finished = true;
+                    break;
+                }
+                Err(e) => {
+                    self.finished = true;
+                    self.pending_error = Some(e);
+                    break;
+                }
             }
-            if self.record.as_slice().len() > MAX_RECORD_BYTES {
-                self.finished = true;
-                let line = self.record.position().map_or(0, |p| p.line());
-                return Err(SourceError::Limit {
-                    path: self.info.path.clone(),
-                    position: Position::Text { line, column: 1, byte: self.record.position().map_or(0, |p| p.byte()) },
-                    message: format!("a record is longer than {MAX_RECORD_BYTES} bytes (limit against hostile files)"),
-                });
-            }
-            if self.columns.is_empty() {
-                self.columns = (1..=self.record.len()).map(|i| format!("column_{i}")).collect();
-            }
-            let row = self.columns.iter().zip(self.record.iter()).map(|(name, cell)| (name.clone(), type_cell(cell)));
-            rows.push(Value::Object(row.collect()));
         }
         if rows.is_empty() {
-            return Ok(None);
+            return match self.pending_error.take() {
+                Some(e) => Err(e),
+                None => Ok(None),
+            };
         }
         Ok(Some(Batch::Rows(rows)))
+    }
+}
+
+impl CsvSource {
+    fn read_row(&mut self) -> Result<Option<Value>, SourceError> {
+        let got = self.reader.read_record(&mut self.record).map_err(|e| csv_error(&self.info.path, self.info.format, e))?;
+        if !got {
+            return Ok(None);
+        }
+        if self.record.as_slice().len() > MAX_RECORD_BYTES {
+            let position = self.record.position().map_or(Position::File, |p| Position::Text {
+                line: p.line(),
+                column: 1,
+                byte: p.byte(),
+            });
+            return Err(SourceError::Limit {
+                path: self.info.path.clone(),
+                position,
+                message: format!("a record is longer than {MAX_RECORD_BYTES} bytes (limit against hostile files)"),
+            });
+        }
+        if self.columns.is_empty() {
+            self.columns = (1..=self.record.len()).map(|i| format!("column_{i}")).collect();
+        }
+        let row = self.columns.iter().zip(self.record.iter()).map(|(name, cell)| (name.clone(), type_cell(cell)));
+        Ok(Some(Value::Object(row.collect())))
     }
 }
 

@@ -38,6 +38,8 @@ pub struct JsonSource {
     file_bytes_read: Arc<AtomicU64>,
     buf: Vec<u8>,
     finished: bool,
+    /// An error met after some rows of a batch: those rows go out first.
+    pending_error: Option<SourceError>,
 }
 
 impl JsonSource {
@@ -65,7 +67,7 @@ impl JsonSource {
             parquet_leaves: None,
             facts: Facts::default(),
         };
-        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), finished: false })
+        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), finished: false, pending_error: None })
     }
 
     fn path(&self) -> PathBuf {
@@ -151,6 +153,9 @@ impl Source for JsonSource {
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        if let Some(e) = self.pending_error.take() {
+            return Err(e);
+        }
         if self.finished {
             return Ok(None);
         }
@@ -177,7 +182,8 @@ impl Source for JsonSource {
                 }
                 Err(e) => {
                     self.finished = true;
-                    return Err(self.frame_error(e));
+                    self.pending_error = Some(self.frame_error(e));
+                    break;
                 }
             };
             text_bytes += buf.len();
@@ -185,13 +191,17 @@ impl Source for JsonSource {
                 Ok(v) => rows.push(as_row(v)),
                 Err(e) => {
                     self.finished = true;
-                    return Err(self.syntax_error(&buf, start, e));
+                    self.pending_error = Some(self.syntax_error(&buf, start, e));
+                    break;
                 }
             }
         }
         self.buf = buf;
-        if rows.is_empty() && self.finished {
-            return Ok(None);
+        if rows.is_empty() {
+            return match self.pending_error.take() {
+                Some(e) => Err(e),
+                None => Ok(None),
+            };
         }
         Ok(Some(Batch::Rows(rows)))
     }
