@@ -11,11 +11,13 @@ use arrow_schema::SchemaRef;
 use super::error::{Position, SourceError};
 use super::facts::shorten_metadata_value;
 use super::guard;
+use super::ipc_big_endian::{BigEndianReader, is_big_endian_stream};
 use super::{Batch, Compression, Facts, Format, Progress, Source, SourceInfo};
 
 enum Reader {
     File(FileReader<BufReader<File>>),
     Stream(StreamReader<BufReader<File>>),
+    BigEndian(Box<BigEndianReader>),
 }
 
 pub struct IpcSource {
@@ -30,15 +32,25 @@ impl IpcSource {
         let file = File::open(path).map_err(|e| SourceError::io(path, e))?;
         let buffered = BufReader::with_capacity(1 << 20, file);
         let malformed = |m: String| SourceError::malformed(path, format, Position::Footer, m);
+        let big_endian = |file_format: bool| -> Result<(Reader, SchemaRef, Option<usize>), SourceError> {
+            let r = guard::catch(|| BigEndianReader::open(path, file_format))
+                .map_err(malformed)?
+                .map_err(malformed)?;
+            let schema = r.schema.clone();
+            Ok((Reader::BigEndian(Box::new(r)), schema, None))
+        };
         let (reader, schema, record_batches): (Reader, SchemaRef, Option<usize>) = match format {
-            Format::ArrowFile => {
-                let r = guard::catch(|| FileReader::try_new(buffered, None))
-                    .map_err(malformed)?
-                    .map_err(|e| malformed(e.to_string()))?;
-                let schema = r.schema();
-                let n = r.num_batches();
-                (Reader::File(r), schema, Some(n))
-            }
+            Format::ArrowFile => match guard::catch(|| FileReader::try_new(buffered, None)).map_err(malformed)? {
+                Ok(r) => {
+                    let schema = r.schema();
+                    let n = r.num_batches();
+                    (Reader::File(r), schema, Some(n))
+                }
+                // arrow-rs refuses big-endian files; they are converted here.
+                Err(e) if e.to_string().contains("endianness") => big_endian(true)?,
+                Err(e) => return Err(malformed(e.to_string())),
+            },
+            _ if is_big_endian_stream(path) => big_endian(false)?,
             _ => {
                 let r = guard::catch(|| StreamReader::try_new(buffered, None))
                     .map_err(|m| SourceError::malformed(path, format, Position::Byte(0), m))?
@@ -81,6 +93,7 @@ impl Source for IpcSource {
         let next = guard::catch(|| match &mut self.reader {
             Reader::File(r) => r.next(),
             Reader::Stream(r) => r.next(),
+            Reader::BigEndian(r) => r.next_batch().map_err(arrow_schema::ArrowError::IpcError).transpose(),
         });
         let position = Position::Batch(self.batch_index);
         let fail = |this: &mut Self, message: String| {

@@ -14,6 +14,7 @@ pub mod error;
 pub mod facts;
 pub mod guard;
 pub mod ipc;
+pub mod ipc_big_endian;
 pub mod json;
 pub mod limits;
 pub mod parquet;
