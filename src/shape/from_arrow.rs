@@ -117,18 +117,15 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         UInt64 => int_range::<UInt64Type>(node, array, present),
         Utf8 => {
             let a = array.as_string::<i32>();
-            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
-            node.kinds.add(Kind::String, n);
+            observe_strings(node, n, positions(present, a.len()).map(|i| a.value(i)));
         }
         LargeUtf8 => {
             let a = array.as_string::<i64>();
-            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
-            node.kinds.add(Kind::String, n);
+            observe_strings(node, n, positions(present, a.len()).map(|i| a.value(i)));
         }
         Utf8View => {
             let a = array.as_string_view();
-            positions(present, a.len()).for_each(|i| node.kinds.forms.observe(a.value(i)));
-            node.kinds.add(Kind::String, n);
+            observe_strings(node, n, positions(present, a.len()).map(|i| a.value(i)));
         }
         Struct(fields) => {
             node.kinds.add(Kind::Object, n);
@@ -140,40 +137,30 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             }
         }
         List(field) => {
-            node.kinds.add(Kind::Array, n);
             let l = array.as_list::<i32>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
-            let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeList(field) => {
-            node.kinds.add(Kind::Array, n);
             let l = array.as_list::<i64>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
-            let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         ListView(field) => {
-            node.kinds.add(Kind::Array, n);
             let l = array.as_list_view::<i32>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
-            let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeListView(field) => {
-            node.kinds.add(Kind::Array, n);
             let l = array.as_list_view::<i64>();
             let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
-            let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         FixedSizeList(field, size) => {
-            node.kinds.add(Kind::Array, n);
             let l = array.as_fixed_size_list();
             let size = *size as usize;
             let ranges = positions(present, l.len()).map(|i| (i * size, size));
-            let mask = ranges_mask(l.values().len(), ranges);
-            observe_array(child_for(node, field.name(), field, Role::Element), l.values().as_ref(), Some(&mask));
+            observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         Map(_, _) => {
             node.kinds.add(Kind::Map, n);
@@ -213,6 +200,18 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         other => node.kinds.add(kind_of(other), n),
     }
+}
+
+fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item = &'a str>) {
+    values.for_each(|v| node.kinds.forms.observe(v));
+    node.kinds.add(Kind::String, n);
+}
+
+/// A list's elements: the (offset, length) ranges of its present values.
+fn observe_list(node: &mut FieldShape, n: u64, field: &Field, values: &dyn Array, ranges: impl Iterator<Item = (usize, usize)>) {
+    node.kinds.add(Kind::Array, n);
+    let mask = ranges_mask(values.len(), ranges);
+    observe_array(child_for(node, field.name(), field, Role::Element), values, Some(&mask));
 }
 
 fn value_type_of(data_type: &DataType) -> DataType {

@@ -50,6 +50,18 @@ impl Cursor {
     }
 }
 
+/// The reader's buffered bytes, retrying a read that was interrupted.
+fn fill<R: BufRead>(reader: &mut R) -> io::Result<&[u8]> {
+    loop {
+        match reader.fill_buf() {
+            Ok(_) => break,
+            Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+            Err(e) => return Err(e),
+        }
+    }
+    reader.fill_buf()
+}
+
 /// One record per line; blank lines are skipped, `\r\n` is accepted.
 pub struct LineFramer<R> {
     reader: R,
@@ -68,11 +80,8 @@ impl<R: BufRead> LineFramer<R> {
             let mut start = self.cursor.start();
             let mut saw_newline = false;
             loop {
-                let chunk = match self.reader.fill_buf() {
-                    Ok(c) => c,
-                    Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-                    Err(e) => return Err(FrameError::Io(e, self.cursor.start())),
-                };
+                let at = self.cursor.start();
+                let chunk = fill(&mut self.reader).map_err(|e| FrameError::Io(e, at))?;
                 if chunk.is_empty() {
                     break;
                 }
@@ -139,13 +148,8 @@ impl<R: BufRead> ArrayFramer<R> {
     }
 
     fn peek(&mut self) -> Result<Option<u8>, FrameError> {
-        loop {
-            match self.reader.fill_buf() {
-                Ok(c) => return Ok(c.first().copied()),
-                Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-                Err(e) => return Err(FrameError::Io(e, self.cursor.start())),
-            }
-        }
+        let at = self.cursor.start();
+        Ok(fill(&mut self.reader).map_err(|e| FrameError::Io(e, at))?.first().copied())
     }
 
     fn bump(&mut self) {
@@ -194,11 +198,8 @@ impl<R: BufRead> ArrayFramer<R> {
         let mut in_string = false;
         let mut escaped = false;
         loop {
-            let chunk = match self.reader.fill_buf() {
-                Ok(c) => c,
-                Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-                Err(e) => return Err(FrameError::Io(e, self.cursor.start())),
-            };
+            let at = self.cursor.start();
+            let chunk = fill(&mut self.reader).map_err(|e| FrameError::Io(e, at))?;
             if chunk.is_empty() {
                 return Err(FrameError::Syntax(
                     "the top-level array is not closed (end of input inside it)".into(),
@@ -319,6 +320,18 @@ mod tests {
         assert_eq!(got[1].1.line, 2);
         assert_eq!(got[1].1.column, 2);
         assert!(elements("[]").unwrap().is_empty());
+    }
+
+    #[test]
+    fn an_overlong_line_or_element_hits_the_limit() {
+        use std::io::Read;
+        let long = io::repeat(b'x').take(MAX_RECORD_BYTES as u64 + 10);
+        let mut buf = Vec::new();
+        let mut lines = LineFramer::new(io::BufReader::new(long));
+        assert!(matches!(lines.next_record(&mut buf), Err(FrameError::TooLong(Start { line: 1, .. }))));
+        let long = io::Cursor::new(b"[\"".to_vec()).chain(io::repeat(b'y').take(MAX_RECORD_BYTES as u64 + 10));
+        let mut array = ArrayFramer::new(io::BufReader::new(long));
+        assert!(matches!(array.next_record(&mut buf), Err(FrameError::TooLong(_))));
     }
 
     #[test]

@@ -1,0 +1,107 @@
+//! Benchmarks for reading a source's shape, with peers in the same run:
+//!
+//! 1. `--shape-only` on a Parquet file of at least 1 GB: Plumbline's
+//!    in-process time (open, footer, Shape) and the CLI's time to its first
+//!    line of output, each beside pyarrow's `read_metadata` on the same file.
+//! 2. JSON Lines shape inference (every row read) on a 500 MB file, in MB/s,
+//!    beside `polars.read_ndjson` on the same file.
+//!
+//! Run: `cargo bench --bench shape` (release build). The data is generated on
+//! first use into `$PLUMBLINE_BENCH_DATA` (default: the system temp folder)
+//! and not committed. Needs Python with `tests/bench/requirements.txt`.
+
+use std::io::Read;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+use std::sync::atomic::AtomicBool;
+use std::time::{Duration, Instant};
+
+use plumbline::scan::{self, ScanOptions};
+use plumbline::source::OpenOptions;
+
+fn peers_script() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/bench/peers.py")
+}
+
+fn python(args: &[&str]) -> String {
+    let out = Command::new("python3").arg(peers_script()).args(args).output().expect("python3");
+    assert!(out.status.success(), "peers.py {args:?}: {}", String::from_utf8_lossy(&out.stderr));
+    String::from_utf8_lossy(&out.stdout).trim().to_string()
+}
+
+fn data_file(name: &str, make: &str) -> PathBuf {
+    let dir = std::env::var_os("PLUMBLINE_BENCH_DATA").map(PathBuf::from).unwrap_or_else(std::env::temp_dir);
+    let path = dir.join(name);
+    if !path.exists() {
+        eprintln!("generating {} (once)…", path.display());
+        let partial = dir.join(format!("{name}.partial"));
+        python(&[make, partial.to_str().unwrap()]);
+        std::fs::rename(&partial, &path).unwrap();
+    }
+    path
+}
+
+fn median(mut times: Vec<Duration>) -> Duration {
+    times.sort();
+    times[times.len() / 2]
+}
+
+fn time_runs(runs: usize, mut f: impl FnMut()) -> Duration {
+    median((0..runs).map(|_| {
+        let t = Instant::now();
+        f();
+        t.elapsed()
+    }).collect())
+}
+
+fn shape(path: &Path, shape_only: bool) -> u64 {
+    let stop = AtomicBool::new(false);
+    let scan = scan::scan_path(path, OpenOptions::default(), ScanOptions { shape_only }, &stop, &mut |_| {}).unwrap();
+    assert!(!scan.coverage.is_partial(), "{:?}", scan.coverage);
+    scan.shape.rows
+}
+
+/// Wall time from starting the CLI to its first byte of output.
+fn cli_first_output(path: &Path) -> Duration {
+    let bin = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/release/plumbline");
+    let bin = std::env::var_os("CARGO_TARGET_DIR").map(|d| PathBuf::from(d).join("release/plumbline")).unwrap_or(bin);
+    let start = Instant::now();
+    let mut child = Command::new(&bin)
+        .args(["profile", "--shape-only", path.to_str().unwrap()])
+        .stdout(Stdio::piped())
+        .spawn()
+        .unwrap_or_else(|e| panic!("{}: {e} (build it with cargo build --release)", bin.display()));
+    let mut first = [0u8; 1];
+    child.stdout.as_mut().unwrap().read_exact(&mut first).unwrap();
+    let elapsed = start.elapsed();
+    child.wait().unwrap();
+    elapsed
+}
+
+fn main() {
+    let parquet = data_file("plumbline-bench-1g.parquet", "make-parquet");
+    let size = std::fs::metadata(&parquet).unwrap().len();
+    assert!(size >= 1 << 30, "{} is only {size} bytes", parquet.display());
+    let ours = time_runs(20, || {
+        shape(&parquet, true);
+    });
+    let cli = median((0..10).map(|_| cli_first_output(&parquet)).collect());
+    let pyarrow = Duration::from_secs_f64(python(&["footer", parquet.to_str().unwrap()]).parse().unwrap());
+    println!("Parquet --shape-only, {:.2} GB, {} row groups:", size as f64 / 1e9, 110);
+    println!("  plumbline in-process (open + footer + Shape): {:>9.3} ms", ours.as_secs_f64() * 1e3);
+    println!("  pyarrow read_metadata:                         {:>9.3} ms", pyarrow.as_secs_f64() * 1e3);
+    println!("  ratio plumbline / pyarrow:                     {:>9.2}", ours.as_secs_f64() / pyarrow.as_secs_f64());
+    println!("  plumbline CLI, start to first output:          {:>9.3} ms", cli.as_secs_f64() * 1e3);
+    println!("  ratio CLI first output / pyarrow in-process:   {:>9.2}", cli.as_secs_f64() / pyarrow.as_secs_f64());
+
+    let jsonl = data_file("plumbline-bench-500m.jsonl", "make-jsonl");
+    let bytes = std::fs::metadata(&jsonl).unwrap().len() as f64;
+    let mut rows = 0;
+    let ours = time_runs(3, || rows = shape(&jsonl, false));
+    let polars = Duration::from_secs_f64(python(&["ndjson", jsonl.to_str().unwrap()]).parse().unwrap());
+    let mb = bytes / 1e6;
+    println!("JSON Lines shape inference, {:.0} MB, {rows} rows:", mb);
+    println!("  plumbline (every row):  {:>8.2} s  {:>7.1} MB/s", ours.as_secs_f64(), mb / ours.as_secs_f64());
+    println!("  polars.read_ndjson:     {:>8.2} s  {:>7.1} MB/s", polars.as_secs_f64(), mb / polars.as_secs_f64());
+    println!("  ratio plumbline / polars time: {:.2}", ours.as_secs_f64() / polars.as_secs_f64());
+}
