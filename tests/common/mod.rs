@@ -9,10 +9,14 @@ use std::time::Duration;
 use plumbline::scan::{self, Scan, ScanOptions};
 use plumbline::source::{OpenOptions, SourceError};
 
-/// A folder of `../shared/corpus/`. When it is absent the tests say so
-/// loudly, and fail under CI (`CI=true`) rather than pass without checking.
+/// A folder of `../shared/corpus/` (or of `$PLUMBLINE_CORPUS` when set).
+/// When it is absent the tests say so loudly, and fail under CI (`CI=true`)
+/// rather than pass without checking.
 pub fn corpus(sub: &str) -> Option<PathBuf> {
-    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/corpus").join(sub);
+    let root = std::env::var_os("PLUMBLINE_CORPUS")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| Path::new(env!("CARGO_MANIFEST_DIR")).join("../shared/corpus"));
+    let dir = root.join(sub);
     if dir.is_dir() {
         return Some(dir);
     }

@@ -75,8 +75,16 @@ impl<R: BufRead> LineFramer<R> {
 
     /// Fills `buf` with the next non-blank line (without its line ending).
     pub fn next_record(&mut self, buf: &mut Vec<u8>) -> Result<Option<Start>, FrameError> {
+        buf.clear();
+        self.append_record(buf)
+    }
+
+    /// Appends the next non-blank line (without its line ending) to `buf`,
+    /// so a batch of lines can share one buffer.
+    pub fn append_record(&mut self, buf: &mut Vec<u8>) -> Result<Option<Start>, FrameError> {
+        let base = buf.len();
         loop {
-            buf.clear();
+            buf.truncate(base);
             let mut start = self.cursor.start();
             let mut saw_newline = false;
             loop {
@@ -89,7 +97,7 @@ impl<R: BufRead> LineFramer<R> {
                     Some(i) => (i + 1, true),
                     None => (chunk.len(), false),
                 };
-                if buf.len() + take > MAX_RECORD_BYTES + 2 {
+                if buf.len() - base + take > MAX_RECORD_BYTES + 2 {
                     return Err(FrameError::TooLong(start));
                 }
                 buf.extend_from_slice(&chunk[..take]);
@@ -99,27 +107,27 @@ impl<R: BufRead> LineFramer<R> {
                     break;
                 }
             }
-            if buf.is_empty() {
+            if buf.len() == base {
                 return Ok(None);
             }
-            self.cursor.byte += buf.len() as u64;
+            self.cursor.byte += (buf.len() - base) as u64;
             if saw_newline {
                 self.cursor.line += 1;
                 self.cursor.line_start = self.cursor.byte;
                 buf.pop();
             }
-            if buf.last() == Some(&b'\r') {
+            if buf.len() > base && buf.last() == Some(&b'\r') {
                 buf.pop();
             }
-            if start.byte == 0 && buf.starts_with(&[0xEF, 0xBB, 0xBF]) {
-                buf.drain(..3);
+            if start.byte == 0 && buf[base..].starts_with(&[0xEF, 0xBB, 0xBF]) {
+                buf.drain(base..base + 3);
                 start.byte += 3;
                 start.column += 3;
             }
-            if buf.len() > MAX_RECORD_BYTES {
+            if buf.len() - base > MAX_RECORD_BYTES {
                 return Err(FrameError::TooLong(start));
             }
-            if buf.iter().all(|&b| is_json_ws(b)) {
+            if buf[base..].iter().all(|&b| is_json_ws(b)) {
                 continue;
             }
             return Ok(Some(start));
@@ -174,6 +182,12 @@ impl<R: BufRead> ArrayFramer<R> {
     /// Fills `buf` with the next element's bytes; `None` after the closing `]`.
     pub fn next_record(&mut self, buf: &mut Vec<u8>) -> Result<Option<Start>, FrameError> {
         buf.clear();
+        self.append_record(buf)
+    }
+
+    /// Appends the next element's bytes to `buf`; `None` after the closing `]`.
+    pub fn append_record(&mut self, buf: &mut Vec<u8>) -> Result<Option<Start>, FrameError> {
+        let base = buf.len();
         match self.state {
             ArrayState::Closed => return Ok(None),
             ArrayState::BeforeOpen => {
@@ -230,7 +244,7 @@ impl<R: BufRead> ArrayFramer<R> {
                 }
                 used += 1;
             }
-            if buf.len() + used > MAX_RECORD_BYTES {
+            if buf.len() - base + used > MAX_RECORD_BYTES {
                 return Err(FrameError::TooLong(start));
             }
             buf.extend_from_slice(&chunk[..used]);

@@ -8,6 +8,8 @@ pub mod frame;
 pub mod parse;
 
 use std::io::{BufRead, Read};
+
+use rayon::prelude::*;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, Ordering};
@@ -165,17 +167,20 @@ impl Source for JsonSource {
             let value = self.read_single(reader)?;
             return Ok(Some(Batch::Rows(vec![as_row(value)])));
         }
-        let mut rows = Vec::new();
-        let mut text_bytes = 0usize;
-        let mut buf = std::mem::take(&mut self.buf);
-        while rows.len() < TEXT_BATCH_ROWS && text_bytes < BATCH_BYTES {
+        // Cut records one after another, then parse them in parallel: the
+        // parse is most of the cost, and each record stands alone.
+        let mut text = std::mem::take(&mut self.buf);
+        text.clear();
+        let mut records: Vec<(usize, usize, Start)> = Vec::new();
+        while records.len() < TEXT_BATCH_ROWS && text.len() < BATCH_BYTES {
+            let from = text.len();
             let next = match &mut self.framer {
-                Framer::Lines(f) => f.next_record(&mut buf),
-                Framer::Array(f) => f.next_record(&mut buf),
+                Framer::Lines(f) => f.append_record(&mut text),
+                Framer::Array(f) => f.append_record(&mut text),
                 Framer::Single(_) => unreachable!("handled above"),
             };
-            let start = match next {
-                Ok(Some(start)) => start,
+            match next {
+                Ok(Some(start)) => records.push((from, text.len(), start)),
                 Ok(None) => {
                     self.finished = true;
                     break;
@@ -185,17 +190,22 @@ impl Source for JsonSource {
                     self.pending_error = Some(self.frame_error(e));
                     break;
                 }
-            };
-            text_bytes += buf.len();
-            match parse::parse_value(&buf) {
+            }
+        }
+        let parsed: Vec<Result<Value, parse::SyntaxError>> =
+            records.par_iter().map(|&(from, to, _)| parse::parse_value(&text[from..to])).collect();
+        let mut rows = Vec::with_capacity(parsed.len());
+        for (result, &(from, to, start)) in parsed.into_iter().zip(&records) {
+            match result {
                 Ok(v) => rows.push(as_row(v)),
                 Err(e) => {
                     self.finished = true;
-                    self.pending_error = Some(self.syntax_error(&buf, start, e));
+                    self.pending_error = Some(self.syntax_error(&text[from..to], start, e));
                     break;
                 }
             }
         }
+        let buf = text;
         self.buf = buf;
         if rows.is_empty() {
             return match self.pending_error.take() {
