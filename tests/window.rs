@@ -91,3 +91,20 @@ fn a_source_broken_half_way_is_shown_as_partial() {
     h.get_by_label_contains("Partial: the source broke after 2 rows");
     h.get_by_label_contains("a   int (uint8)");
 }
+
+#[test]
+fn the_stop_button_stops_the_read_and_the_result_is_marked_partial() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("long.jsonl");
+    // Large enough that reading it takes far longer than a few frames.
+    let line = "{\"id\":1,\"nested\":{\"a\":[1,2,3],\"b\":\"some text here\"},\"x\":1.5}\n";
+    std::fs::write(&path, line.repeat(1_500_000)).unwrap();
+    let mut h = window(path);
+    h.step();
+    h.get_by_label("Stop").click();
+    wait_for_read(&mut h);
+    h.get_by_label_contains("Partial: stopped by the user after");
+    let app = h.state().as_ref().unwrap();
+    let scan = app.state.scan.as_ref().unwrap();
+    assert!(scan.shape.rows < 1_500_000, "{} rows", scan.shape.rows);
+}
