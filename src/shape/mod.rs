@@ -344,3 +344,51 @@ impl FieldShape {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::value::Value;
+
+    fn row(pairs: &[(&str, Value)]) -> Value {
+        Value::Object(pairs.iter().map(|(k, v)| (k.to_string(), v.clone())).collect())
+    }
+
+    fn rows() -> Vec<Value> {
+        vec![
+            row(&[("a", Value::Int(1)), ("b", Value::Str("x".into()))]),
+            row(&[("a", Value::Null)]),
+            row(&[("a", Value::Str("late".into())), ("c", Value::Array(vec![Value::Int(5)]))]),
+            row(&[("b", Value::Str("2024-01-02".into()))]),
+        ]
+    }
+
+    #[test]
+    fn chunks_merged_in_order_equal_one_pass() {
+        let all = rows();
+        let mut whole = ShapeBuilder::empty();
+        whole.add(&Batch::Rows(all.clone()));
+        let mut first = ShapeBuilder::empty();
+        first.add(&Batch::Rows(all[..2].to_vec()));
+        let mut second = ShapeBuilder::empty();
+        second.add(&Batch::Rows(all[2..].to_vec()));
+        first.merge_after(second);
+        assert_eq!(first.finish(), whole.finish());
+    }
+
+    #[test]
+    fn counts_follow_the_counting_rule() {
+        let mut b = ShapeBuilder::empty();
+        b.add(&Batch::Rows(rows()));
+        let shape = b.finish();
+        let a = shape.find("a").unwrap();
+        assert_eq!((a.count, a.present(), a.nulls(), a.missing), (4, 2, 1, 1));
+        assert_eq!(a.kinds.unified(), Unified::Mixed);
+        let examples = a.minority_examples();
+        assert_eq!(examples.len(), 1, "the minority kind only: {examples:?}");
+        assert_eq!(examples[0].1.row, 2);
+        let c = shape.find("c[]").unwrap();
+        assert_eq!((c.count, c.missing), (1, 0));
+        assert_eq!(shape.find("b").unwrap().kinds.forms.date, 1);
+    }
+}
