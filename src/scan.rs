@@ -83,6 +83,7 @@ pub fn scan_source(
         return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly };
     }
     let row_limit = options.shape_only.then_some(SHAPE_ONLY_ROWS);
+    let mut next = source.next_batch();
     let coverage = loop {
         if stop.load(Ordering::Relaxed) {
             break Coverage::Stopped(builder.rows());
@@ -92,18 +93,24 @@ pub fn scan_source(
         {
             break Coverage::FirstRows(builder.rows());
         }
-        match source.next_batch() {
-            Ok(Some(batch)) => {
-                let batch = match row_limit {
-                    Some(limit) => truncate_batch(batch, (limit - builder.rows()) as usize),
-                    None => batch,
-                };
-                builder.add(&batch);
-                progress(source.progress());
-            }
+        let batch = match next {
+            Ok(Some(batch)) => batch,
             Ok(None) => break Coverage::Full,
             Err(e) => break Coverage::Broken { rows: builder.rows(), error: e.to_string() },
+        };
+        let (added, following) = match row_limit {
+            Some(limit) => {
+                let added = builder.add(&truncate_batch(batch, (limit - builder.rows()) as usize));
+                (added, source.next_batch())
+            }
+            // Read the next batch while this one is observed.
+            None => rayon::join(|| builder.add(&batch), || source.next_batch()),
+        };
+        progress(source.progress());
+        if let Err(e) = added {
+            break Coverage::Broken { rows: builder.rows(), error: e.to_string() };
         }
+        next = following;
     };
     Scan { info, shape: builder.finish(), coverage }
 }
@@ -114,6 +121,10 @@ fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {
         source::Batch::Rows(mut r) if r.len() > keep => {
             r.truncate(keep);
             source::Batch::Rows(r)
+        }
+        source::Batch::Json(mut r) if r.len() > keep => {
+            r.truncate(keep);
+            source::Batch::Json(r)
         }
         other => other,
     }

@@ -69,6 +69,10 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             Kind::Object
         }
     };
+    // Only the first few of each kind are kept; skip the lookup after that.
+    if node.kinds.get(kind) > super::EXAMPLES_PER_KIND as u64 {
+        return;
+    }
     node.note_example(kind, row, || match value {
         Value::Str(s) => truncate_chars(s.clone(), EXAMPLE_CHARS),
         other => other.to_display(EXAMPLE_CHARS),

@@ -21,7 +21,8 @@ use serde::Serialize;
 pub use declared::Declared;
 pub use kinds::{Kind, KindCounts, Unified};
 
-use crate::source::{Batch, SourceInfo};
+use crate::source::json::RawRecords;
+use crate::source::{Batch, SourceError, SourceInfo};
 
 /// Examples kept per kind per field (for showing minority kinds).
 pub const EXAMPLES_PER_KIND: usize = 3;
@@ -304,16 +305,36 @@ impl ShapeBuilder {
         self.rows
     }
 
-    /// Observes one batch whose first row has number `self.rows()`.
-    pub fn add(&mut self, batch: &Batch) {
+    /// Observes one batch whose first row has number `self.rows()`. JSON
+    /// records are parsed here, in parallel chunks; a bad record ends the
+    /// batch: the rows before it are kept and its error returned.
+    pub fn add(&mut self, batch: &Batch) -> Result<(), SourceError> {
         let first_row = self.rows;
         match batch {
             Batch::Arrow(b) => from_arrow::observe_batch(&mut self.root, b),
             Batch::Rows(rows) => from_values::observe_rows(&mut self.root, rows, first_row),
+            Batch::Json(records) => return self.add_json(records),
         }
-        self.rows += batch.num_rows() as u64;
-        self.root.kinds.add(Kind::Object, batch.num_rows() as u64);
-        self.root.appeared += batch.num_rows() as u64;
+        self.count_rows(batch.num_rows() as u64);
+        Ok(())
+    }
+
+    fn count_rows(&mut self, n: u64) {
+        self.rows += n;
+        self.root.kinds.add(Kind::Object, n);
+        self.root.appeared += n;
+    }
+
+    fn add_json(&mut self, records: &RawRecords) -> Result<(), SourceError> {
+        let (chunks, error) = records.fold_chunks(ShapeBuilder::empty, |chunk, _, row| {
+            let rows = std::slice::from_ref(&row);
+            from_values::observe_rows(&mut chunk.root, rows, chunk.rows);
+            chunk.count_rows(1);
+        });
+        for chunk in chunks {
+            self.merge_after(chunk);
+        }
+        error.map_or(Ok(()), Err)
     }
 
     /// Merges a chunk that came after everything already added.
@@ -367,11 +388,11 @@ mod tests {
     fn chunks_merged_in_order_equal_one_pass() {
         let all = rows();
         let mut whole = ShapeBuilder::empty();
-        whole.add(&Batch::Rows(all.clone()));
+        whole.add(&Batch::Rows(all.clone())).unwrap();
         let mut first = ShapeBuilder::empty();
-        first.add(&Batch::Rows(all[..2].to_vec()));
+        first.add(&Batch::Rows(all[..2].to_vec())).unwrap();
         let mut second = ShapeBuilder::empty();
-        second.add(&Batch::Rows(all[2..].to_vec()));
+        second.add(&Batch::Rows(all[2..].to_vec())).unwrap();
         first.merge_after(second);
         assert_eq!(first.finish(), whole.finish());
     }
@@ -379,7 +400,7 @@ mod tests {
     #[test]
     fn counts_follow_the_counting_rule() {
         let mut b = ShapeBuilder::empty();
-        b.add(&Batch::Rows(rows()));
+        b.add(&Batch::Rows(rows())).unwrap();
         let shape = b.finish();
         let a = shape.find("a").unwrap();
         assert_eq!((a.count, a.present(), a.nulls(), a.missing), (4, 2, 1, 1));

@@ -253,20 +253,30 @@ impl DirSource {
             return Ok(batch);
         }
         let value_of = |field: &PartitionField| part.partitions.iter().find(|(k, _)| *k == field.name).and_then(|(_, v)| v.clone());
+        let partition_values: Vec<(String, Value)> = self
+            .partition_fields
+            .iter()
+            .map(|field| {
+                let value = match value_of(field) {
+                    None => Value::Null,
+                    Some(v) if field.integer => v.parse().map(Value::Int).unwrap_or(Value::Str(v)),
+                    Some(v) => Value::Str(v),
+                };
+                (field.name.clone(), value)
+            })
+            .collect();
         match batch {
+            Batch::Json(mut records) => {
+                records.add_members(partition_values);
+                Ok(Batch::Json(records))
+            }
             Batch::Rows(mut rows) => {
                 for row in &mut rows {
                     let Value::Object(members) = row else { continue };
-                    for field in &self.partition_fields {
-                        if members.iter().any(|(k, _)| *k == field.name) {
-                            continue;
+                    for (name, value) in &partition_values {
+                        if !members.iter().any(|(k, _)| k == name) {
+                            members.push((name.clone(), value.clone()));
                         }
-                        let value = match value_of(field) {
-                            None => Value::Null,
-                            Some(v) if field.integer => v.parse().map(Value::Int).unwrap_or(Value::Str(v)),
-                            Some(v) => Value::Str(v),
-                        };
-                        members.push((field.name.clone(), value));
                     }
                 }
                 Ok(Batch::Rows(rows))

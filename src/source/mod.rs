@@ -63,6 +63,8 @@ pub enum Batch {
     Arrow(RecordBatch),
     /// One [`Value::Object`] per row.
     Rows(Vec<Value>),
+    /// JSON records cut but not yet parsed (see [`json::RawRecords`]).
+    Json(json::RawRecords),
 }
 
 impl Batch {
@@ -70,6 +72,7 @@ impl Batch {
         match self {
             Batch::Arrow(b) => b.num_rows(),
             Batch::Rows(r) => r.len(),
+            Batch::Json(r) => r.len(),
         }
     }
 }

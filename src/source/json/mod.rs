@@ -6,20 +6,21 @@
 
 pub mod frame;
 pub mod parse;
+pub mod records;
 
 use std::io::{BufRead, Read};
 
-use rayon::prelude::*;
 use std::path::{Path, PathBuf};
 use std::sync::Arc;
 use std::sync::atomic::{AtomicU64, Ordering};
 
 use super::decompress::{Compression, open_decompressed};
-use super::error::{Position, SourceError, line_column, read_failure};
+use super::error::{Position, SourceError, read_failure};
 use super::limits::MAX_RECORD_BYTES;
 use super::{Batch, Facts, Format, Progress, Source, SourceInfo, TEXT_BATCH_ROWS};
 use crate::value::Value;
 use frame::{ArrayFramer, FrameError, LineFramer, Start};
+pub use records::RawRecords;
 
 /// Name of the single field holding a row that is not an object.
 pub const VALUE_FIELD: &str = "value";
@@ -39,6 +40,7 @@ pub struct JsonSource {
     framer: Framer,
     file_bytes_read: Arc<AtomicU64>,
     buf: Vec<u8>,
+    shared_path: Arc<PathBuf>,
     finished: bool,
     /// An error met after some rows of a batch: those rows go out first.
     pending_error: Option<SourceError>,
@@ -69,7 +71,7 @@ impl JsonSource {
             parquet_leaves: None,
             facts: Facts::default(),
         };
-        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), finished: false, pending_error: None })
+        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), shared_path: Arc::new(path.to_path_buf()), finished: false, pending_error: None })
     }
 
     fn path(&self) -> PathBuf {
@@ -88,16 +90,6 @@ impl JsonSource {
                 message: format!("a record is longer than {MAX_RECORD_BYTES} bytes (limit against hostile files)"),
             },
         }
-    }
-
-    fn syntax_error(&self, record: &[u8], start: Start, e: parse::SyntaxError) -> SourceError {
-        let (line, column) = line_column(record, e.offset);
-        let position = Position::Text {
-            line: start.line + line - 1,
-            column: if line == 1 { start.column + column - 1 } else { column },
-            byte: start.byte + e.offset as u64,
-        };
-        SourceError::malformed(&self.info.path, self.info.format, position, e.message)
     }
 
     fn read_single(&mut self, mut reader: Box<dyn BufRead + Send>) -> Result<Value, SourceError> {
@@ -122,7 +114,9 @@ impl JsonSource {
             None => (&doc[..], 0),
         };
         let start = Start { byte: bom, line: 1, column: 1 + bom };
-        parse::parse_value(body).map_err(|e| self.syntax_error(body, start, e))
+        let body_len = body.len();
+        let text = body.to_vec();
+        RawRecords::new(text, vec![(0, body_len, start)], self.shared_path.clone(), self.info.format).row(0)
     }
 }
 
@@ -164,13 +158,14 @@ impl Source for JsonSource {
         if let Framer::Single(reader) = &mut self.framer {
             self.finished = true;
             let Some(reader) = reader.take() else { return Ok(None) };
-            let value = self.read_single(reader)?;
-            return Ok(Some(Batch::Rows(vec![as_row(value)])));
+            let row = self.read_single(reader)?;
+            return Ok(Some(Batch::Rows(vec![row])));
         }
         // Cut records one after another, then parse them in parallel: the
         // parse is most of the cost, and each record stands alone.
         let mut text = std::mem::take(&mut self.buf);
         text.clear();
+        text.reserve(BATCH_BYTES);
         let mut records: Vec<(usize, usize, Start)> = Vec::new();
         while records.len() < TEXT_BATCH_ROWS && text.len() < BATCH_BYTES {
             let from = text.len();
@@ -192,28 +187,14 @@ impl Source for JsonSource {
                 }
             }
         }
-        let parsed: Vec<Result<Value, parse::SyntaxError>> =
-            records.par_iter().map(|&(from, to, _)| parse::parse_value(&text[from..to])).collect();
-        let mut rows = Vec::with_capacity(parsed.len());
-        for (result, &(from, to, start)) in parsed.into_iter().zip(&records) {
-            match result {
-                Ok(v) => rows.push(as_row(v)),
-                Err(e) => {
-                    self.finished = true;
-                    self.pending_error = Some(self.syntax_error(&text[from..to], start, e));
-                    break;
-                }
-            }
-        }
-        let buf = text;
-        self.buf = buf;
-        if rows.is_empty() {
+        if records.is_empty() {
+            self.buf = text;
             return match self.pending_error.take() {
                 Some(e) => Err(e),
                 None => Ok(None),
             };
         }
-        Ok(Some(Batch::Rows(rows)))
+        Ok(Some(Batch::Json(RawRecords::new(text, records, self.shared_path.clone(), self.info.format))))
     }
 }
 
@@ -228,8 +209,17 @@ mod tests {
         let mut src = JsonSource::open(&path, format, Compression::None, text.len() as u64)?;
         let mut rows = Vec::new();
         while let Some(b) = src.next_batch()? {
-            let Batch::Rows(r) = b else { panic!("json gives rows") };
-            rows.extend(r);
+            match b {
+                Batch::Rows(r) => rows.extend(r),
+                Batch::Json(raw) => {
+                    let (r, error) = raw.rows();
+                    rows.extend(r);
+                    if let Some(e) = error {
+                        return Err(e);
+                    }
+                }
+                Batch::Arrow(_) => panic!("json gives no Arrow batches"),
+            }
         }
         Ok(rows)
     }

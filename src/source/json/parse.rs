@@ -244,12 +244,12 @@ impl<'a> Parser<'a> {
         let mut out = String::new();
         loop {
             let run_start = self.pos;
-            while let Some(&b) = self.bytes.get(self.pos) {
-                if b == b'"' || b == b'\\' || b < 0x20 {
-                    break;
-                }
-                self.pos += 1;
-            }
+            // Jump to the next quote or backslash, then check the run for
+            // control characters (both loops are vectorised).
+            let rest = &self.bytes[run_start..];
+            let stop = memchr::memchr2(b'"', b'\\', rest).unwrap_or(rest.len());
+            let stop = rest[..stop].iter().position(|&b| b < 0x20).unwrap_or(stop);
+            self.pos = run_start + stop;
             let run = &self.bytes[run_start..self.pos];
             match std::str::from_utf8(run) {
                 Ok(s) => out.push_str(s),
