@@ -17,6 +17,10 @@ use std::sync::atomic::AtomicBool;
 use std::time::{Duration, Instant};
 
 use plumbline::scan::{self, ScanOptions};
+
+// The allocator the `plumbline` binary uses, so in-process figures match it.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 use plumbline::source::OpenOptions;
 
 fn peers_script() -> PathBuf {
@@ -61,21 +65,24 @@ fn shape(path: &Path, shape_only: bool) -> u64 {
     scan.shape.rows
 }
 
-/// Wall time from starting the CLI to its first byte of output.
-fn cli_first_output(path: &Path) -> Duration {
-    let bin = Path::new(env!("CARGO_MANIFEST_DIR")).join("target/release/plumbline");
-    let bin = std::env::var_os("CARGO_TARGET_DIR").map(|d| PathBuf::from(d).join("release/plumbline")).unwrap_or(bin);
+/// Wall time from starting a command to its first byte of output.
+fn first_output(command: &mut Command) -> Duration {
     let start = Instant::now();
-    let mut child = Command::new(&bin)
-        .args(["profile", "--shape-only", path.to_str().unwrap()])
-        .stdout(Stdio::piped())
-        .spawn()
-        .unwrap_or_else(|e| panic!("{}: {e} (build it with cargo build --release)", bin.display()));
+    let mut child = command.stdout(Stdio::piped()).spawn().unwrap_or_else(|e| panic!("{command:?}: {e}"));
     let mut first = [0u8; 1];
     child.stdout.as_mut().unwrap().read_exact(&mut first).unwrap();
     let elapsed = start.elapsed();
     child.wait().unwrap();
     elapsed
+}
+
+fn plumbline_binary() -> PathBuf {
+    let target = std::env::var_os("CARGO_TARGET_DIR")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| Path::new(env!("CARGO_MANIFEST_DIR")).join("target"));
+    let bin = target.join("release/plumbline");
+    assert!(bin.exists(), "{} is missing: run cargo build --release first", bin.display());
+    bin
 }
 
 fn main() {
@@ -85,14 +92,21 @@ fn main() {
     let ours = time_runs(20, || {
         shape(&parquet, true);
     });
-    let cli = median((0..10).map(|_| cli_first_output(&parquet)).collect());
+    let bin = plumbline_binary();
+    let cli = median(
+        (0..10).map(|_| first_output(Command::new(&bin).args(["profile", "--shape-only", parquet.to_str().unwrap()]))).collect(),
+    );
+    let footer_script = "import sys, pyarrow.parquet as pq; pq.read_metadata(sys.argv[1]); print(1)";
+    let pyarrow_cli =
+        median((0..5).map(|_| first_output(Command::new("python3").args(["-c", footer_script, parquet.to_str().unwrap()]))).collect());
     let pyarrow = Duration::from_secs_f64(python(&["footer", parquet.to_str().unwrap()]).parse().unwrap());
     println!("Parquet --shape-only, {:.2} GB, {} row groups:", size as f64 / 1e9, 110);
     println!("  plumbline in-process (open + footer + Shape): {:>9.3} ms", ours.as_secs_f64() * 1e3);
     println!("  pyarrow read_metadata:                         {:>9.3} ms", pyarrow.as_secs_f64() * 1e3);
     println!("  ratio plumbline / pyarrow:                     {:>9.2}", ours.as_secs_f64() / pyarrow.as_secs_f64());
     println!("  plumbline CLI, start to first output:          {:>9.3} ms", cli.as_secs_f64() * 1e3);
-    println!("  ratio CLI first output / pyarrow in-process:   {:>9.2}", cli.as_secs_f64() / pyarrow.as_secs_f64());
+    println!("  python3 + pyarrow read_metadata, start to output: {:>6.3} ms", pyarrow_cli.as_secs_f64() * 1e3);
+    println!("  ratio plumbline CLI / python3 + pyarrow:       {:>9.2}", cli.as_secs_f64() / pyarrow_cli.as_secs_f64());
 
     let jsonl = data_file("plumbline-bench-500m.jsonl", "make-jsonl");
     let bytes = std::fs::metadata(&jsonl).unwrap().len() as f64;
