@@ -101,7 +101,7 @@ pub fn scan_source(
         let (added, following) = match row_limit {
             Some(limit) => {
                 let added = builder.add(&truncate_batch(batch, (limit - builder.rows()) as usize));
-                (added, source.next_batch())
+                (added, if builder.rows() < limit { source.next_batch() } else { Ok(None) })
             }
             // Read the next batch while this one is observed.
             None => rayon::join(|| builder.add(&batch), || source.next_batch()),

@@ -243,3 +243,28 @@ fn a_ragged_csv_record_is_an_error_with_its_line_after_the_good_rows() {
     assert!(line.contains("ragged.csv: line 4") && line.contains("expected 2 fields"), "{line}");
     assert!(stdout(&o).contains("2 rows") && stdout(&o).contains("PARTIAL"), "{}", stdout(&o));
 }
+
+#[test]
+fn gzip_csv_and_tsv_are_detected_and_typed() {
+    let dir = tempfile::tempdir().unwrap();
+    let csv = "id,when,price,ok\n1,2024-05-01,1.50,true\n2,2024-05-02,,false\n";
+    let gz = dir.path().join("prices.csv.gz");
+    let mut enc = flate2::write::GzEncoder::new(std::fs::File::create(&gz).unwrap(), flate2::Compression::default());
+    enc.write_all(csv.as_bytes()).unwrap();
+    enc.finish().unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", gz.to_str().unwrap(), "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r = read_json(&report);
+    assert_eq!(r["source"]["format"], "CSV");
+    assert_eq!(r["source"]["compression"], "gzip");
+    assert_eq!(r["source"]["facts"]["delimited"]["header"], true);
+    let observed: Vec<&str> = r["fields"].as_array().unwrap().iter().map(|f| f["observed"].as_str().unwrap()).collect();
+    assert_eq!(observed, ["int (uint8)", "string (date)", "float", "bool"]);
+    assert_eq!(r["fields"][2]["nulls"], 1);
+
+    let tsv = write(dir.path(), "plain.txt", "a\tb\nx\t1\ny\t2\n");
+    let o = plumbline(&["profile", tsv.to_str().unwrap()]);
+    assert!(o.status.success());
+    assert!(stdout(&o).contains("TSV") && stdout(&o).contains("delimiter: tab"), "{}", stdout(&o));
+}

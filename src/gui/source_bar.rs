@@ -32,8 +32,13 @@ impl SourceBar {
             } else if let Some(scan) = &state.scan {
                 let info = &scan.info;
                 ui.strong(info.path.display().to_string());
+                let compression = match info.compression {
+                    crate::source::Compression::None => "",
+                    crate::source::Compression::Gzip => " (gzip)",
+                    crate::source::Compression::Zstd => " (zstd)",
+                };
                 ui.label(format!(
-                    "{} · {} · {} rows · {} part{}",
+                    "{}{compression} · {} · {} rows · {} part{}",
                     info.format.label(),
                     human_bytes(info.bytes),
                     group_digits(scan.shape.rows),
