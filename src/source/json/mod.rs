@@ -161,11 +161,9 @@ impl Source for JsonSource {
             let row = self.read_single(reader)?;
             return Ok(Some(Batch::Rows(vec![row])));
         }
-        // Cut records one after another, then parse them in parallel: the
-        // parse is most of the cost, and each record stands alone.
+        // Only cut the records here; the consumer parses them in parallel.
         let mut text = std::mem::take(&mut self.buf);
         text.clear();
-        text.reserve(BATCH_BYTES);
         let mut records: Vec<(usize, usize, Start)> = Vec::new();
         while records.len() < TEXT_BATCH_ROWS && text.len() < BATCH_BYTES {
             let from = text.len();
