@@ -8,6 +8,7 @@ pub mod cli;
 pub mod format;
 pub mod gui;
 pub mod path;
+pub mod profile;
 pub mod report;
 pub mod scan;
 pub mod shape;
