@@ -4,6 +4,7 @@
 //! This is the start of the profiler: the numeric kernels and their checks
 //! against published references. They are not yet wired into the scan.
 
+pub mod distinct;
 pub mod histogram;
 pub mod moments;
 pub mod quantiles;
