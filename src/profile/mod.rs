@@ -6,5 +6,6 @@
 
 pub mod distinct;
 pub mod histogram;
+pub mod kll;
 pub mod moments;
 pub mod quantiles;

