@@ -16,14 +16,21 @@ pub fn auto_edges(values: &[f64]) -> Vec<f64> {
     }
     sorted.sort_by(f64::total_cmp);
     let (lo, hi) = (sorted[0], sorted[sorted.len() - 1]);
-    let n = sorted.len() as f64;
+    let q1 = quantiles::type7(&sorted, 0.25).unwrap_or(lo);
+    let q3 = quantiles::type7(&sorted, 0.75).unwrap_or(hi);
+    auto_edges_from_summary(lo, hi, q1, q3, sorted.len() as f64)
+}
+
+/// The same rule from a summary: range, quartiles and count (for inputs
+/// known only through a sketch).
+pub fn auto_edges_from_summary(lo: f64, hi: f64, q1: f64, q3: f64, n: f64) -> Vec<f64> {
     if lo == hi {
         // numpy widens an empty range to [lo − 0.5, hi + 0.5] with one bin.
         return vec![lo - 0.5, hi + 0.5];
     }
     let range = hi - lo;
     let sturges_width = range / (n.log2() + 1.0);
-    let iqr = quantiles::type7(&sorted, 0.75).unwrap_or(0.0) - quantiles::type7(&sorted, 0.25).unwrap_or(0.0);
+    let iqr = q3 - q1;
     let fd_width = 2.0 * iqr / n.cbrt();
     let sqrt_width = range / n.sqrt();
     let width = fd_width.max(sqrt_width / 2.0).min(sturges_width);

@@ -131,6 +131,20 @@ impl Kll {
         Some(self.max)
     }
 
+    /// Estimated share of values ≤ `x` (within [`RANK_ERROR`]).
+    pub fn rank(&self, x: f64) -> f64 {
+        if self.count == 0 {
+            return 0.0;
+        }
+        let at_most: u64 = self
+            .levels
+            .iter()
+            .enumerate()
+            .map(|(level, items)| items.iter().filter(|&&v| v <= x).count() as u64 * (1u64 << level))
+            .sum();
+        at_most as f64 / self.count as f64
+    }
+
     /// Values held, for the memory bound: O(k) regardless of the count.
     pub fn retained(&self) -> usize {
         self.levels.iter().map(Vec::len).sum()
@@ -183,6 +197,15 @@ mod tests {
             assert_eq!(sketch.quantile(0.0), Some(sorted[0]));
             assert_eq!(sketch.quantile(1.0), Some(*sorted.last().unwrap()));
         }
+    }
+
+    #[test]
+    fn rank_is_the_share_at_or_below() {
+        let mut sketch = Kll::default();
+        (0..10_000).for_each(|i| sketch.add(i as f64));
+        assert!((sketch.rank(4999.0) - 0.5).abs() <= RANK_ERROR);
+        assert_eq!(sketch.rank(-1.0), 0.0);
+        assert_eq!(sketch.rank(1e9), 1.0);
     }
 
     #[test]

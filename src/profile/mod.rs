@@ -8,4 +8,5 @@ pub mod distinct;
 pub mod histogram;
 pub mod kll;
 pub mod moments;
+pub mod numbers;
 pub mod quantiles;
