@@ -77,7 +77,7 @@ pub fn scan_source(
     progress: &mut dyn FnMut(Progress),
 ) -> Scan {
     let info = source.info().clone();
-    let mut builder = ShapeBuilder::new(&info);
+    let mut builder = ShapeBuilder::new(&info, !options.shape_only);
     let has_schema = info.schema.is_some();
     if options.shape_only && has_schema {
         return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly };

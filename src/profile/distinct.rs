@@ -7,7 +7,7 @@
 //! 100,000² / 2⁶⁵ ≈ 3·10⁻¹⁰.
 
 use std::collections::HashSet;
-use std::hash::{BuildHasher, BuildHasherDefault, Hasher};
+use std::hash::{BuildHasherDefault, Hasher};
 
 use hyperloglogplus::{HyperLogLog, HyperLogLogPlus};
 
@@ -142,17 +142,14 @@ impl Distinct {
     }
 }
 
-/// A 64-bit hash of bytes, the same on every machine and run (SipHash-1-3
-/// with fixed keys, Rust's `DefaultHasher::new`).
+/// A 64-bit hash of bytes, the same on every machine and run.
 pub fn hash_bytes(bytes: &[u8]) -> u64 {
-    let mut h = std::hash::DefaultHasher::new();
-    h.write(bytes);
-    h.finish()
+    super::hash::bytes(bytes)
 }
 
-/// A 64-bit hash of a number's bits.
+/// A 64-bit hash of a number.
 pub fn hash_u64(x: u64) -> u64 {
-    std::hash::BuildHasherDefault::<std::hash::DefaultHasher>::default().hash_one(x)
+    super::hash::int(x as i128)
 }
 
 #[cfg(test)]

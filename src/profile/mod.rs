@@ -1,10 +1,12 @@
 //! Per-field statistics, one accumulator per statistic, each mergeable so
 //! chunks can run in parallel and be combined.
 //!
-//! This is the start of the profiler: the numeric kernels and their checks
-//! against published references. They are not yet wired into the scan.
+//! The Shape's nodes carry a [`field::FieldStats`] when a scan profiles (not
+//! for `--shape-only`); the observers in `shape/` feed it.
 
 pub mod distinct;
+pub mod field;
+pub mod hash;
 pub mod histogram;
 pub mod kll;
 pub mod moments;

@@ -72,6 +72,54 @@ pub struct FieldEntry {
     pub missing: u64,
     /// For mixed fields: values of the minority kinds, with their row.
     pub examples: Vec<ExampleEntry>,
+    /// Statistics (absent for `--shape-only`).
+    #[serde(flatten, skip_serializing_if = "Option::is_none")]
+    pub stats: Option<StatsEntry>,
+}
+
+/// Statistics of a field's values. Numbers: ints, floats and decimals.
+#[derive(Debug, Serialize)]
+pub struct StatsEntry {
+    /// Distinct non-null scalar values; absent for objects, arrays and maps.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub distinct: Option<u64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub distinct_exact: Option<bool>,
+    /// Relative standard error of a sketched distinct count.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub distinct_error: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub min: Option<serde_json::Value>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub max: Option<serde_json::Value>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub mean: Option<f64>,
+    /// Sample standard deviation (n − 1).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub std: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub quantiles: Option<Quantiles>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub quantiles_exact: Option<bool>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub quantiles_rank_error: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub histogram: Option<crate::profile::numbers::Histogram>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub nan: Option<u64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub infinite: Option<u64>,
+}
+
+#[derive(Debug, Serialize)]
+pub struct Quantiles {
+    pub p1: f64,
+    pub p5: f64,
+    pub p25: f64,
+    pub p50: f64,
+    pub p75: f64,
+    pub p95: f64,
+    pub p99: f64,
 }
 
 #[derive(Debug, Serialize)]
@@ -134,6 +182,43 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
         nulls: f.nulls(),
         missing: f.missing,
         examples,
+        stats: f.stats.as_deref().map(|s| stats_entry(f, s)),
+    }
+}
+
+fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats) -> StatsEntry {
+    let distinct = stats.distinct_count();
+    let numbers = stats.numbers.as_ref().filter(|n| n.moments.count() > 0);
+    // Integers keep their exact range; other numbers report the float one.
+    let int_only = f.kinds.unified() == crate::shape::Unified::One(crate::shape::Kind::Int);
+    let (min, max) = match (f.kinds.int_range, numbers) {
+        (Some((lo, hi)), _) if int_only => (Some(serde_json::json!(lo)), Some(serde_json::json!(hi))),
+        (_, Some(n)) => (n.moments.min().map(|v| serde_json::json!(v)), n.moments.max().map(|v| serde_json::json!(v))),
+        _ => (None, None),
+    };
+    let quantiles = numbers.and_then(|n| n.quantiles());
+    StatsEntry {
+        distinct: distinct.map(|d| d.value),
+        distinct_exact: distinct.map(|d| d.exact),
+        distinct_error: distinct.filter(|d| !d.exact).map(|d| d.standard_error),
+        min,
+        max,
+        mean: numbers.and_then(|n| n.moments.mean()),
+        std: numbers.and_then(|n| n.moments.std()),
+        quantiles: quantiles.as_ref().filter(|q| q.values.len() == 7).map(|q| Quantiles {
+            p1: q.values[0],
+            p5: q.values[1],
+            p25: q.values[2],
+            p50: q.values[3],
+            p75: q.values[4],
+            p95: q.values[5],
+            p99: q.values[6],
+        }),
+        quantiles_exact: quantiles.as_ref().map(|q| q.exact),
+        quantiles_rank_error: quantiles.as_ref().and_then(|q| q.rank_error),
+        histogram: numbers.and_then(|n| n.histogram()),
+        nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
+        infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }
 }
 

@@ -12,6 +12,7 @@ use arrow_schema::{DataType, Field, UnionMode};
 
 use super::declared::Declared;
 use super::{FieldShape, Kind, Role};
+use crate::profile::hash;
 
 pub fn observe_batch(root: &mut FieldShape, batch: &RecordBatch) {
     let schema = batch.schema();
@@ -198,13 +199,113 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
                 Err(_) => node.kinds.add(kind_of(&target), n),
             }
         }
+        Float16 => {
+            let a = array.as_primitive::<Float16Type>();
+            observe_floats(node, n, positions(present, a.len()).map(|i| a.values()[i].to_f64()));
+        }
+        Float32 => {
+            let a = array.as_primitive::<Float32Type>();
+            observe_floats(node, n, positions(present, a.len()).map(|i| a.values()[i] as f64));
+        }
+        Float64 => {
+            let a = array.as_primitive::<Float64Type>();
+            observe_floats(node, n, positions(present, a.len()).map(|i| a.values()[i]));
+        }
+        Boolean => {
+            let a = array.as_boolean();
+            let values: Vec<[u8; 1]> = positions(present, a.len()).map(|i| [a.value(i) as u8]).collect();
+            observe_raw(node, Kind::Bool, n, values.iter().map(|b| &b[..]));
+        }
+        Decimal32(_, scale) => observe_decimals::<Decimal32Type>(node, n, array, present, *scale),
+        Decimal64(_, scale) => observe_decimals::<Decimal64Type>(node, n, array, present, *scale),
+        Decimal128(_, scale) => observe_decimals::<Decimal128Type>(node, n, array, present, *scale),
+        Binary => {
+            let a = array.as_binary::<i32>();
+            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+        }
+        LargeBinary => {
+            let a = array.as_binary::<i64>();
+            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+        }
+        FixedSizeBinary(_) => {
+            let a = array.as_fixed_size_binary();
+            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+        }
+        Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
+        Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
+        Timestamp(unit, _) => match unit {
+            arrow_schema::TimeUnit::Second => observe_primitive_raw::<TimestampSecondType>(node, Kind::Timestamp, n, array, present),
+            arrow_schema::TimeUnit::Millisecond => {
+                observe_primitive_raw::<TimestampMillisecondType>(node, Kind::Timestamp, n, array, present)
+            }
+            arrow_schema::TimeUnit::Microsecond => {
+                observe_primitive_raw::<TimestampMicrosecondType>(node, Kind::Timestamp, n, array, present)
+            }
+            arrow_schema::TimeUnit::Nanosecond => {
+                observe_primitive_raw::<TimestampNanosecondType>(node, Kind::Timestamp, n, array, present)
+            }
+        },
         other => node.kinds.add(kind_of(other), n),
     }
 }
 
 fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item = &'a str>) {
-    values.for_each(|v| node.kinds.forms.observe(v));
+    let forms = &mut node.kinds.forms;
+    match node.stats.as_deref_mut() {
+        Some(stats) => values.for_each(|v| {
+            forms.observe(v);
+            stats.add_distinct(hash::string(v));
+        }),
+        None => values.for_each(|v| forms.observe(v)),
+    }
     node.kinds.add(Kind::String, n);
+}
+
+/// Floats: numbers and distinct values.
+fn observe_floats(node: &mut FieldShape, n: u64, values: impl Iterator<Item = f64>) {
+    if let Some(stats) = node.stats.as_deref_mut() {
+        for v in values {
+            stats.add_number(v);
+            if !v.is_nan() {
+                stats.add_distinct(hash::float(v));
+            }
+        }
+    }
+    node.kinds.add(Kind::Float, n);
+}
+
+/// Other scalars: distinct values by their raw bytes.
+fn observe_raw<'a>(node: &mut FieldShape, kind: Kind, n: u64, values: impl Iterator<Item = &'a [u8]>) {
+    if let Some(stats) = node.stats.as_deref_mut() {
+        values.for_each(|v| stats.add_distinct(hash::other(v)));
+    }
+    node.kinds.add(kind, n);
+}
+
+/// Fixed-width primitives (temporal, decimal) by their native bytes.
+fn observe_primitive_raw<T: ArrowPrimitiveType>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>) {
+    let a = array.as_primitive::<T>();
+    let bytes: &[u8] = a.values().inner().as_slice();
+    let width = std::mem::size_of::<T::Native>();
+    observe_raw(node, kind, n, positions(present, a.len()).map(|i| &bytes[i * width..(i + 1) * width]));
+}
+
+/// Decimals: numbers (value / 10^scale, as f64) and distinct raw values.
+fn observe_decimals<T>(node: &mut FieldShape, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>, scale: i8)
+where
+    T: ArrowPrimitiveType,
+    T::Native: Into<i128>,
+{
+    let a = array.as_primitive::<T>();
+    let divisor = 10f64.powi(scale as i32);
+    if let Some(stats) = node.stats.as_deref_mut() {
+        for i in positions(present, a.len()) {
+            let raw: i128 = a.values()[i].into();
+            stats.add_number(raw as f64 / divisor);
+            stats.add_distinct(hash::other(&raw.to_le_bytes()));
+        }
+    }
+    node.kinds.add(Kind::Decimal, n);
 }
 
 /// A list's elements: the (offset, length) ranges of its present values.
@@ -232,11 +333,16 @@ where
     let mut lo = i128::MAX;
     let mut hi = i128::MIN;
     let mut n = 0u64;
+    let mut stats = node.stats.as_deref_mut();
     for i in positions(present, a.len()) {
         let v: i128 = values[i].into();
         lo = lo.min(v);
         hi = hi.max(v);
         n += 1;
+        if let Some(stats) = stats.as_deref_mut() {
+            stats.add_number(v as f64);
+            stats.add_distinct(hash::int(v));
+        }
     }
     node.kinds.add(Kind::Int, n);
     if n > 0 {

@@ -2,6 +2,7 @@
 //! time, keeping a missing key apart from an explicit null.
 
 use super::{EXAMPLE_CHARS, FieldShape, Kind, Role};
+use crate::profile::hash;
 use crate::value::{Value, truncate_chars};
 
 pub fn observe_rows(root: &mut FieldShape, rows: &[Value], first_row: u64) {
@@ -21,6 +22,14 @@ fn observe_members(node: &mut FieldShape, members: &[(String, Value)], row: u64)
     }
 }
 
+fn observe_int(node: &mut FieldShape, v: i128) {
+    node.kinds.add_int(v);
+    if let Some(stats) = node.stats.as_deref_mut() {
+        stats.add_number(v as f64);
+        stats.add_distinct(hash::int(v));
+    }
+}
+
 pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
     node.appeared += 1;
     let kind = match value {
@@ -28,29 +37,43 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::Null, 1);
             return;
         }
-        Value::Bool(_) => {
+        Value::Bool(b) => {
             node.kinds.add(Kind::Bool, 1);
+            if let Some(stats) = node.stats.as_deref_mut() {
+                stats.add_distinct(hash::bool(*b));
+            }
             Kind::Bool
         }
         Value::Int(i) => {
-            node.kinds.add_int(*i as i128);
+            observe_int(node, *i as i128);
             Kind::Int
         }
         Value::UInt(u) => {
-            node.kinds.add_int(*u as i128);
+            observe_int(node, *u as i128);
             Kind::Int
         }
-        Value::BigInt(_) => {
+        Value::BigInt(digits) => {
             node.kinds.add(Kind::Decimal, 1);
+            if let Some(stats) = node.stats.as_deref_mut() {
+                stats.add_number(digits.parse::<f64>().unwrap_or(f64::NAN));
+                stats.add_distinct(hash::other(digits.as_bytes()));
+            }
             Kind::Decimal
         }
-        Value::Float(_) => {
+        Value::Float(f) => {
             node.kinds.add(Kind::Float, 1);
+            if let Some(stats) = node.stats.as_deref_mut() {
+                stats.add_number(*f);
+                stats.add_distinct(hash::float(*f));
+            }
             Kind::Float
         }
         Value::Str(s) => {
             node.kinds.add(Kind::String, 1);
             node.kinds.forms.observe(s);
+            if let Some(stats) = node.stats.as_deref_mut() {
+                stats.add_distinct(hash::string(s));
+            }
             Kind::String
         }
         Value::Array(items) => {

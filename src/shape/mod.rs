@@ -21,6 +21,7 @@ use serde::Serialize;
 pub use declared::Declared;
 pub use kinds::{Kind, KindCounts, Unified};
 
+use crate::profile::field::FieldStats;
 use crate::source::json::RawRecords;
 use crate::source::{Batch, SourceError, SourceInfo};
 
@@ -64,6 +65,8 @@ pub struct FieldShape {
     pub missing: u64,
     pub examples: BTreeMap<Kind, Vec<Example>>,
     pub children: Vec<FieldShape>,
+    /// Statistics of the values, when the scan profiles.
+    pub stats: Option<Box<FieldStats>>,
     /// The name as placed in the parent (differs from `name` only for a
     /// repeated field name: `name#2`).
     key: String,
@@ -83,6 +86,7 @@ impl FieldShape {
             missing: 0,
             examples: BTreeMap::new(),
             children: Vec::new(),
+            stats: None,
             key: name.to_string(),
             index: HashMap::new(),
         }
@@ -117,6 +121,7 @@ impl FieldShape {
         self.index.insert(index_key, self.children.len());
         let mut child = FieldShape::new(name, path, role);
         child.key = key.to_string();
+        child.stats = self.stats.as_ref().map(|_| Box::default());
         self.children.push(child);
         self.children.last_mut().expect("just pushed")
     }
@@ -173,6 +178,9 @@ impl FieldShape {
         }
         self.kinds.merge(&other.kinds);
         self.appeared += other.appeared;
+        if let Some(theirs) = &other.stats {
+            self.stats.get_or_insert_with(Box::default).merge(theirs);
+        }
         for (kind, list) in &other.examples {
             let mine = self.examples.entry(*kind).or_default();
             mine.extend(list.iter().cloned());
@@ -287,9 +295,13 @@ pub struct ShapeBuilder {
 
 impl ShapeBuilder {
     /// Starts from the declared schema, so every declared field is shown even
-    /// when no row holds it.
-    pub fn new(info: &SourceInfo) -> Self {
+    /// when no row holds it. With `profile`, every field also gathers
+    /// statistics of its values.
+    pub fn new(info: &SourceInfo, profile: bool) -> Self {
         let mut root = FieldShape::new("", String::new(), Role::Member);
+        if profile {
+            root.stats = Some(Box::default());
+        }
         if let Some(schema) = &info.schema {
             declared::seed_from_schema(&mut root, schema, info.parquet_leaves.as_deref());
         }
@@ -297,8 +309,12 @@ impl ShapeBuilder {
     }
 
     /// An empty builder for a chunk; merge it into the main one afterwards.
-    pub fn empty() -> Self {
-        ShapeBuilder { root: FieldShape::new("", String::new(), Role::Member), rows: 0 }
+    pub fn empty(profile: bool) -> Self {
+        let mut root = FieldShape::new("", String::new(), Role::Member);
+        if profile {
+            root.stats = Some(Box::default());
+        }
+        ShapeBuilder { root, rows: 0 }
     }
 
     pub fn rows(&self) -> u64 {
@@ -326,7 +342,8 @@ impl ShapeBuilder {
     }
 
     fn add_json(&mut self, records: &RawRecords) -> Result<(), SourceError> {
-        let (chunks, error) = records.fold_chunks(ShapeBuilder::empty, |chunk, _, row| {
+        let profile = self.root.stats.is_some();
+        let (chunks, error) = records.fold_chunks(|| ShapeBuilder::empty(profile), |chunk, _, row| {
             let rows = std::slice::from_ref(&row);
             from_values::observe_rows(&mut chunk.root, rows, chunk.rows);
             chunk.count_rows(1);
@@ -387,11 +404,11 @@ mod tests {
     #[test]
     fn chunks_merged_in_order_equal_one_pass() {
         let all = rows();
-        let mut whole = ShapeBuilder::empty();
+        let mut whole = ShapeBuilder::empty(true);
         whole.add(&Batch::Rows(all.clone())).unwrap();
-        let mut first = ShapeBuilder::empty();
+        let mut first = ShapeBuilder::empty(true);
         first.add(&Batch::Rows(all[..2].to_vec())).unwrap();
-        let mut second = ShapeBuilder::empty();
+        let mut second = ShapeBuilder::empty(true);
         second.add(&Batch::Rows(all[2..].to_vec())).unwrap();
         first.merge_after(second);
         assert_eq!(first.finish(), whole.finish());
@@ -399,7 +416,7 @@ mod tests {
 
     #[test]
     fn counts_follow_the_counting_rule() {
-        let mut b = ShapeBuilder::empty();
+        let mut b = ShapeBuilder::empty(true);
         b.add(&Batch::Rows(rows())).unwrap();
         let shape = b.finish();
         let a = shape.find("a").unwrap();
