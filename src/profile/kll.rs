@@ -7,13 +7,16 @@
 //! total weight stays exactly the count. The coin is seeded: the same input
 //! in the same order gives the same sketch.
 //!
-//! Rank error: with k = 200 the tests hold the normalised rank error of
+//! Rank error: with k = 400 the tests hold the normalised rank error of
 //! p1…p99 under 1 % on adversarial orders (sorted, reversed, heavy
-//! duplicates, two far clusters), single and merged; about 0.4 % is the
-//! worst seen there. [`RANK_ERROR`] is the bound reports state.
+//! duplicates, two far clusters), single and merged, and against
+//! pyarrow.compute on generated Parquet columns. (At k = 200 one such column
+//! came out at 1.1 %, in line with the ≈1.3 % that Apache DataSketches
+//! documents for its KLL at k = 200 — that figure quoted from memory.)
+//! [`RANK_ERROR`] is the bound reports state.
 
 /// Compactor size of the top level.
-pub const K: usize = 200;
+pub const K: usize = 400;
 /// The normalised rank error the tests hold the sketch to.
 pub const RANK_ERROR: f64 = 0.01;
 
