@@ -97,6 +97,9 @@ fn json_report_keeps_nulls_apart_from_missing_keys_and_shows_mixed_examples() {
     let q = read_json(&quiet);
     assert_eq!(q["examples_included"], false);
     assert!(q["fields"].as_array().unwrap().iter().all(|f| f["examples"].as_array().unwrap().is_empty()));
+    assert!(q["fields"].as_array().unwrap().iter().all(|f| f.get("top").is_none()), "no top values either");
+    let with_examples = r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "status").unwrap();
+    assert_eq!(with_examples["top"][0]["value"], "delivered");
 }
 
 #[test]

@@ -1,6 +1,7 @@
 //! Reference check against pyarrow.compute (a general-purpose library
 //! nobody here wrote): null counts, distinct counts, min, max, mean, standard
-//! deviation and quantiles of generated Parquet columns (ints with nulls,
+//! deviation, quantiles, top value counts and string lengths of generated
+//! Parquet columns (ints with nulls,
 //! floats, a small-cardinality int, strings, decimals), written with
 //! pyarrow's own results by `tests/reference/pyarrow_stats.py`.
 //!
@@ -70,6 +71,25 @@ fn statistics_agree_with_pyarrow_compute() {
             } else {
                 let bound = 3.0 * f(&field["distinct_error"]) * expected_distinct;
                 assert!((distinct - expected_distinct).abs() <= bound, "{what}: distinct {distinct} vs {expected_distinct}");
+            }
+            if let Some(value_counts) = reference.get("value_counts").and_then(|v| v.as_object())
+                && value_counts.len() <= 1000
+            {
+                assert_eq!(field["top_exact"], true, "{what}");
+                let top = field["top"].as_array().unwrap();
+                assert_eq!(top.len(), value_counts.len().min(20), "{what}: top size");
+                let counts: Vec<u64> = top.iter().map(|t| t["count"].as_u64().unwrap()).collect();
+                assert!(counts.windows(2).all(|w| w[0] >= w[1]), "{what}: most frequent first");
+                assert_eq!(counts[0], value_counts.values().map(|c| c.as_u64().unwrap()).max().unwrap());
+                for t in top {
+                    let expected = &value_counts[t["value"].as_str().unwrap()];
+                    assert_eq!(&t["count"], expected, "{what}: count of {}", t["value"]);
+                }
+            }
+            if let Some(lengths) = reference.get("lengths") {
+                assert_eq!(field["lengths"]["min"].as_f64(), lengths["min"].as_f64(), "{what}: shortest");
+                assert_eq!(field["lengths"]["max"].as_f64(), lengths["max"].as_f64(), "{what}: longest");
+                assert!(close(f(&field["lengths"]["mean"]), f(&lengths["mean"]), 1e-12), "{what}: mean length");
             }
             let Some(min) = reference.get("min") else { continue };
             assert!(close(f(&field["min"]), f(min), 1e-12), "{what}: min {} vs {min}", field["min"]);

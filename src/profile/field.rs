@@ -2,23 +2,38 @@
 
 use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
+use super::text::TextStats;
+use super::top::TopValues;
+use crate::value::truncate_chars;
+
+/// Characters kept of a top value as shown.
+pub const SHOWN_CHARS: usize = 80;
 
 #[derive(Debug, Clone, Default)]
 pub struct FieldStats {
     /// Present once a number was seen (ints, floats, decimals).
     pub numbers: Option<NumberStats>,
+    /// Present once a string was seen.
+    pub text: Option<TextStats>,
     /// Distinct non-null scalar values.
     pub distinct: Distinct,
+    /// Most frequent scalar values.
+    pub top: TopValues,
 }
 
 impl FieldStats {
-    pub fn add_number(&mut self, x: f64) {
-        self.numbers.get_or_insert_with(NumberStats::new).add(x);
+    /// A scalar value: its hash for distinct and top counts, and how to show it.
+    pub fn add_scalar(&mut self, hash: u64, show: impl FnOnce() -> String) {
+        self.distinct.add_hash(hash);
+        self.top.add(hash, || truncate_chars(show(), SHOWN_CHARS));
     }
 
-    /// Adds a scalar value by its hash (see [`super::hash`]).
-    pub fn add_distinct(&mut self, hash: u64) {
-        self.distinct.add_hash(hash);
+    pub fn add_text(&mut self, s: &str) {
+        self.text.get_or_insert_with(TextStats::new).add(s);
+    }
+
+    pub fn add_number(&mut self, x: f64) {
+        self.numbers.get_or_insert_with(NumberStats::new).add(x);
     }
 
     pub fn merge(&mut self, other: &FieldStats) {
@@ -27,7 +42,13 @@ impl FieldStats {
             (None, Some(theirs)) => self.numbers = Some(theirs.clone()),
             _ => {}
         }
+        match (&mut self.text, &other.text) {
+            (Some(mine), Some(theirs)) => mine.merge(theirs),
+            (None, Some(theirs)) => self.text = Some(theirs.clone()),
+            _ => {}
+        }
         self.distinct.merge(&other.distinct);
+        self.top.merge(&other.top);
     }
 
     pub fn distinct_count(&self) -> Option<DistinctCount> {

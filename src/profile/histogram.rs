@@ -10,6 +10,12 @@ use super::quantiles;
 
 /// Bin edges over `[min, max]` for the finite `values` (numpy `auto`).
 pub fn auto_edges(values: &[f64]) -> Vec<f64> {
+    auto_edges_with(values, false)
+}
+
+/// As [`auto_edges`]; for integer data, bins are at least 1 wide (numpy
+/// does the same for integer arrays).
+pub fn auto_edges_with(values: &[f64], integers: bool) -> Vec<f64> {
     let mut sorted: Vec<f64> = values.iter().copied().filter(|v| v.is_finite()).collect();
     if sorted.is_empty() {
         return Vec::new();
@@ -18,12 +24,12 @@ pub fn auto_edges(values: &[f64]) -> Vec<f64> {
     let (lo, hi) = (sorted[0], sorted[sorted.len() - 1]);
     let q1 = quantiles::type7(&sorted, 0.25).unwrap_or(lo);
     let q3 = quantiles::type7(&sorted, 0.75).unwrap_or(hi);
-    auto_edges_from_summary(lo, hi, q1, q3, sorted.len() as f64)
+    auto_edges_from_summary(lo, hi, q1, q3, sorted.len() as f64, integers)
 }
 
 /// The same rule from a summary: range, quartiles and count (for inputs
 /// known only through a sketch).
-pub fn auto_edges_from_summary(lo: f64, hi: f64, q1: f64, q3: f64, n: f64) -> Vec<f64> {
+pub fn auto_edges_from_summary(lo: f64, hi: f64, q1: f64, q3: f64, n: f64, integers: bool) -> Vec<f64> {
     if lo == hi {
         // numpy widens an empty range to [lo − 0.5, hi + 0.5] with one bin.
         return vec![lo - 0.5, hi + 0.5];
@@ -33,7 +39,10 @@ pub fn auto_edges_from_summary(lo: f64, hi: f64, q1: f64, q3: f64, n: f64) -> Ve
     let iqr = q3 - q1;
     let fd_width = 2.0 * iqr / n.cbrt();
     let sqrt_width = range / n.sqrt();
-    let width = fd_width.max(sqrt_width / 2.0).min(sturges_width);
+    let mut width = fd_width.max(sqrt_width / 2.0).min(sturges_width);
+    if integers && width < 1.0 {
+        width = 1.0;
+    }
     let bins = ((range / width).ceil() as usize).max(1);
     // numpy spaces edges evenly between min and max (linspace).
     (0..=bins).map(|i| lo + range * i as f64 / bins as f64).collect()
@@ -63,6 +72,13 @@ mod tests {
     fn a_constant_sample_gets_one_unit_bin() {
         assert_eq!(auto_edges(&[5.0, 5.0, 5.0]), vec![4.5, 5.5]);
         assert_eq!(counts(&[5.0, 5.0, 5.0], &[4.5, 5.5]), vec![3]);
+    }
+
+    #[test]
+    fn integer_data_gets_bins_at_least_one_wide() {
+        let values: Vec<f64> = (0..1000).map(|i| (i % 5) as f64).collect();
+        assert_eq!(auto_edges_with(&values, true).len(), 5, "4 unit bins over 0..=4");
+        assert!(auto_edges(&values).len() > 5);
     }
 
     #[test]

@@ -12,3 +12,5 @@ pub mod kll;
 pub mod moments;
 pub mod numbers;
 pub mod quantiles;
+pub mod text;
+pub mod top;

@@ -22,6 +22,8 @@ pub struct NumberStats {
     pub nan: u64,
     pub pos_inf: u64,
     pub neg_inf: u64,
+    /// Every finite value was a whole number (histogram bins ≥ 1 wide).
+    fractional: bool,
 }
 
 /// The quantiles, and whether they are exact.
@@ -58,6 +60,7 @@ impl NumberStats {
         }
         self.moments.add(x);
         self.sketch.add(x);
+        self.fractional |= x.fract() != 0.0;
         if let Some(values) = &mut self.exact {
             if values.len() < EXACT_SAMPLE {
                 values.push(x);
@@ -77,6 +80,7 @@ impl NumberStats {
             }
             _ => None,
         };
+        self.fractional |= other.fractional;
         self.nan += other.nan;
         self.pos_inf += other.pos_inf;
         self.neg_inf += other.neg_inf;
@@ -107,14 +111,14 @@ impl NumberStats {
             return None;
         }
         if let Some(values) = &self.exact {
-            let edges = histogram::auto_edges(values);
+            let edges = histogram::auto_edges_with(values, !self.fractional);
             let counts = histogram::counts(values, &edges);
             return Some(Histogram { edges, counts, exact: true });
         }
         let n = self.moments.count() as f64;
         let (lo, hi) = (self.moments.min()?, self.moments.max()?);
         let q = |p| self.sketch.quantile(p).unwrap_or(lo);
-        let edges = histogram::auto_edges_from_summary(lo, hi, q(0.25), q(0.75), n);
+        let edges = histogram::auto_edges_from_summary(lo, hi, q(0.25), q(0.75), n, !self.fractional);
         let mut counts = Vec::with_capacity(edges.len().saturating_sub(1));
         let mut below = 0.0;
         for (i, edge) in edges.iter().enumerate().skip(1) {

@@ -105,11 +105,38 @@ pub struct StatsEntry {
     pub quantiles_rank_error: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub histogram: Option<crate::profile::numbers::Histogram>,
+    /// The 20 most frequent scalar values (left out under `--no-examples`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub top: Option<Vec<crate::profile::top::TopValue>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub top_exact: Option<bool>,
+    /// When not exact: each count may be low by at most this much.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub top_max_undercount: Option<u64>,
+    /// Text: length in characters.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub lengths: Option<Lengths>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub empty: Option<u64>,
+    /// Text with leading or trailing whitespace.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub padded: Option<u64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub nan: Option<u64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub infinite: Option<u64>,
 }
+
+#[derive(Debug, Serialize)]
+pub struct Lengths {
+    pub min: f64,
+    pub mean: f64,
+    pub max: f64,
+    pub histogram: Option<crate::profile::numbers::Histogram>,
+}
+
+/// Top values kept in the report (the categorical histogram: these plus "other").
+pub const TOP_VALUES: usize = 20;
 
 #[derive(Debug, Serialize)]
 pub struct Quantiles {
@@ -182,11 +209,11 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
         nulls: f.nulls(),
         missing: f.missing,
         examples,
-        stats: f.stats.as_deref().map(|s| stats_entry(f, s)),
+        stats: f.stats.as_deref().map(|s| stats_entry(f, s, options)),
     }
 }
 
-fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats) -> StatsEntry {
+fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, options: ReportOptions) -> StatsEntry {
     let distinct = stats.distinct_count();
     let numbers = stats.numbers.as_ref().filter(|n| n.moments.count() > 0);
     // Integers keep their exact range; other numbers report the float one.
@@ -217,6 +244,15 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats) -> Sta
         quantiles_exact: quantiles.as_ref().map(|q| q.exact),
         quantiles_rank_error: quantiles.as_ref().and_then(|q| q.rank_error),
         histogram: numbers.and_then(|n| n.histogram()),
+        top: (!options.no_examples && stats.top.total() > 0).then(|| stats.top.top(TOP_VALUES)),
+        top_exact: (stats.top.total() > 0).then(|| stats.top.is_exact()),
+        top_max_undercount: (!stats.top.is_exact()).then(|| stats.top.max_undercount()),
+        lengths: stats.text.as_ref().and_then(|t| {
+            let m = &t.lengths.moments;
+            Some(Lengths { min: m.min()?, mean: m.mean()?, max: m.max()?, histogram: t.lengths.histogram() })
+        }),
+        empty: stats.text.as_ref().map(|t| t.empty),
+        padded: stats.text.as_ref().map(|t| t.padded),
         nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
         infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }

@@ -213,23 +213,28 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         Boolean => {
             let a = array.as_boolean();
-            let values: Vec<[u8; 1]> = positions(present, a.len()).map(|i| [a.value(i) as u8]).collect();
-            observe_raw(node, Kind::Bool, n, values.iter().map(|b| &b[..]));
+            if let Some(stats) = node.stats.as_deref_mut() {
+                for i in positions(present, a.len()) {
+                    let b = a.value(i);
+                    stats.add_scalar(hash::bool(b), || b.to_string());
+                }
+            }
+            node.kinds.add(Kind::Bool, n);
         }
         Decimal32(_, scale) => observe_decimals::<Decimal32Type>(node, n, array, present, *scale),
         Decimal64(_, scale) => observe_decimals::<Decimal64Type>(node, n, array, present, *scale),
         Decimal128(_, scale) => observe_decimals::<Decimal128Type>(node, n, array, present, *scale),
         Binary => {
             let a = array.as_binary::<i32>();
-            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+            observe_raw(node, Kind::Binary, n, array, positions(present, a.len()).map(|i| (i, a.value(i))));
         }
         LargeBinary => {
             let a = array.as_binary::<i64>();
-            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+            observe_raw(node, Kind::Binary, n, array, positions(present, a.len()).map(|i| (i, a.value(i))));
         }
         FixedSizeBinary(_) => {
             let a = array.as_fixed_size_binary();
-            observe_raw(node, Kind::Binary, n, positions(present, a.len()).map(|i| a.value(i)));
+            observe_raw(node, Kind::Binary, n, array, positions(present, a.len()).map(|i| (i, a.value(i))));
         }
         Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
         Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
@@ -254,43 +259,53 @@ fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item
     match node.stats.as_deref_mut() {
         Some(stats) => values.for_each(|v| {
             forms.observe(v);
-            stats.add_distinct(hash::string(v));
+            stats.add_scalar(hash::string(v), || v.to_string());
+            stats.add_text(v);
         }),
         None => values.for_each(|v| forms.observe(v)),
     }
     node.kinds.add(Kind::String, n);
 }
 
-/// Floats: numbers and distinct values.
+/// Floats: numbers, distinct and top values (NaN counted apart).
 fn observe_floats(node: &mut FieldShape, n: u64, values: impl Iterator<Item = f64>) {
     if let Some(stats) = node.stats.as_deref_mut() {
         for v in values {
             stats.add_number(v);
             if !v.is_nan() {
-                stats.add_distinct(hash::float(v));
+                stats.add_scalar(hash::float(v), || v.to_string());
             }
         }
     }
     node.kinds.add(Kind::Float, n);
 }
 
-/// Other scalars: distinct values by their raw bytes.
-fn observe_raw<'a>(node: &mut FieldShape, kind: Kind, n: u64, values: impl Iterator<Item = &'a [u8]>) {
+/// Other scalars: distinct and top values by their raw bytes, shown as
+/// Arrow displays them.
+fn observe_raw<'a>(
+    node: &mut FieldShape,
+    kind: Kind,
+    n: u64,
+    array: &dyn Array,
+    values: impl Iterator<Item = (usize, &'a [u8])>,
+) {
     if let Some(stats) = node.stats.as_deref_mut() {
-        values.for_each(|v| stats.add_distinct(hash::other(v)));
+        for (i, bytes) in values {
+            stats.add_scalar(hash::other(bytes), || arrow_cast::display::array_value_to_string(array, i).unwrap_or_default());
+        }
     }
     node.kinds.add(kind, n);
 }
 
-/// Fixed-width primitives (temporal, decimal) by their native bytes.
+/// Fixed-width primitives (temporal) by their native bytes.
 fn observe_primitive_raw<T: ArrowPrimitiveType>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>) {
     let a = array.as_primitive::<T>();
     let bytes: &[u8] = a.values().inner().as_slice();
     let width = std::mem::size_of::<T::Native>();
-    observe_raw(node, kind, n, positions(present, a.len()).map(|i| &bytes[i * width..(i + 1) * width]));
+    observe_raw(node, kind, n, array, positions(present, a.len()).map(|i| (i, &bytes[i * width..(i + 1) * width])));
 }
 
-/// Decimals: numbers (value / 10^scale, as f64) and distinct raw values.
+/// Decimals: numbers (value / 10^scale, as f64), distinct and top values.
 fn observe_decimals<T>(node: &mut FieldShape, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>, scale: i8)
 where
     T: ArrowPrimitiveType,
@@ -302,7 +317,9 @@ where
         for i in positions(present, a.len()) {
             let raw: i128 = a.values()[i].into();
             stats.add_number(raw as f64 / divisor);
-            stats.add_distinct(hash::other(&raw.to_le_bytes()));
+            stats.add_scalar(hash::other(&raw.to_le_bytes()), || {
+                arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()
+            });
         }
     }
     node.kinds.add(Kind::Decimal, n);
@@ -341,7 +358,7 @@ where
         n += 1;
         if let Some(stats) = stats.as_deref_mut() {
             stats.add_number(v as f64);
-            stats.add_distinct(hash::int(v));
+            stats.add_scalar(hash::int(v), || v.to_string());
         }
     }
     node.kinds.add(Kind::Int, n);

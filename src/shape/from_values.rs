@@ -26,7 +26,7 @@ fn observe_int(node: &mut FieldShape, v: i128) {
     node.kinds.add_int(v);
     if let Some(stats) = node.stats.as_deref_mut() {
         stats.add_number(v as f64);
-        stats.add_distinct(hash::int(v));
+        stats.add_scalar(hash::int(v), || v.to_string());
     }
 }
 
@@ -40,7 +40,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
         Value::Bool(b) => {
             node.kinds.add(Kind::Bool, 1);
             if let Some(stats) = node.stats.as_deref_mut() {
-                stats.add_distinct(hash::bool(*b));
+                stats.add_scalar(hash::bool(*b), || b.to_string());
             }
             Kind::Bool
         }
@@ -56,7 +56,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::Decimal, 1);
             if let Some(stats) = node.stats.as_deref_mut() {
                 stats.add_number(digits.parse::<f64>().unwrap_or(f64::NAN));
-                stats.add_distinct(hash::other(digits.as_bytes()));
+                stats.add_scalar(hash::other(digits.as_bytes()), || digits.to_string());
             }
             Kind::Decimal
         }
@@ -64,7 +64,9 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::Float, 1);
             if let Some(stats) = node.stats.as_deref_mut() {
                 stats.add_number(*f);
-                stats.add_distinct(hash::float(*f));
+                if !f.is_nan() {
+                    stats.add_scalar(hash::float(*f), || f.to_string());
+                }
             }
             Kind::Float
         }
@@ -72,7 +74,8 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::String, 1);
             node.kinds.forms.observe(s);
             if let Some(stats) = node.stats.as_deref_mut() {
-                stats.add_distinct(hash::string(s));
+                stats.add_scalar(hash::string(s), || s.clone());
+                stats.add_text(s);
             }
             Kind::String
         }

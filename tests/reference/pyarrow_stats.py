@@ -3,7 +3,7 @@
 Writes Parquet files of generated columns and, per column, pyarrow.compute's
 null_count, count_distinct, min_max, mean, stddev (ddof=1) and quantile
 (linear interpolation) at p1..p99 and at p ∓ 0.01 (to judge a sketch's rank
-error).
+error); value_counts for strings and integers; utf8_length for strings.
 
 Usage: python3 pyarrow_stats.py OUT_DIR
 """
@@ -58,6 +58,13 @@ def view(t):
                 below=quantiles(numbers, [p - 0.01 for p in PROBABILITIES]),
                 above=quantiles(numbers, [p + 0.01 for p in PROBABILITIES]),
             )
+        if pa.types.is_string(column.type) or pa.types.is_integer(column.type):
+            counts = pc.value_counts(column.drop_null()).to_pylist()
+            entry["value_counts"] = {str(c["values"]): c["counts"] for c in counts}
+        if pa.types.is_string(column.type):
+            lengths = pc.utf8_length(column)
+            mm = pc.min_max(lengths)
+            entry["lengths"] = {"min": mm["min"].as_py(), "max": mm["max"].as_py(), "mean": pc.mean(lengths).as_py()}
         fields[name] = entry
     return fields
 

@@ -1,0 +1,145 @@
+//! Most frequent values: exact counts while the values fit a budget, then a
+//! Misra–Gries summary (Misra & Gries 1982, "Finding repeated elements"),
+//! merged as Agarwal et al. show ("Mergeable summaries", 2012): each count
+//! is then low by at most n / (k + 1), and every value more frequent than
+//! that is kept.
+
+use std::collections::HashMap;
+
+/// Distinct values counted exactly before summarising.
+pub const EXACT_VALUES: usize = 10_000;
+/// Counters kept by the summary.
+pub const COUNTERS: usize = 1_000;
+
+#[derive(Debug, Clone, Default)]
+pub struct TopValues {
+    /// By value hash: count and the value as shown.
+    counts: HashMap<u64, (u64, String)>,
+    /// Total added (for the error bound once summarised).
+    total: u64,
+    summarised: bool,
+}
+
+/// One top value.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct TopValue {
+    pub value: String,
+    pub count: u64,
+}
+
+impl TopValues {
+    /// Adds a value by its hash; `show` renders it the first time it is seen.
+    pub fn add(&mut self, hash: u64, show: impl FnOnce() -> String) {
+        self.total += 1;
+        if let Some(entry) = self.counts.get_mut(&hash) {
+            entry.0 += 1;
+            return;
+        }
+        self.counts.insert(hash, (1, show()));
+        if !self.summarised && self.counts.len() > EXACT_VALUES {
+            self.summarised = true;
+            self.shrink();
+        } else if self.summarised && self.counts.len() > COUNTERS {
+            self.shrink();
+        }
+    }
+
+    /// Misra–Gries step: subtract the (k+1)-th largest count from all, drop
+    /// those at or below zero, leaving at most k counters.
+    fn shrink(&mut self) {
+        if self.counts.len() <= COUNTERS {
+            return;
+        }
+        let mut counts: Vec<u64> = self.counts.values().map(|(c, _)| *c).collect();
+        counts.sort_unstable_by(|a, b| b.cmp(a));
+        let cut = counts[COUNTERS];
+        self.counts.retain(|_, (c, _)| *c > cut);
+        self.counts.values_mut().for_each(|(c, _)| *c -= cut);
+    }
+
+    pub fn merge(&mut self, other: &TopValues) {
+        self.total += other.total;
+        for (hash, (count, shown)) in &other.counts {
+            self.counts.entry(*hash).or_insert_with(|| (0, shown.clone())).0 += count;
+        }
+        self.summarised |= other.summarised;
+        if !self.summarised && self.counts.len() > EXACT_VALUES {
+            self.summarised = true;
+        }
+        if self.summarised {
+            self.shrink();
+        }
+    }
+
+    /// The `n` most frequent values, most frequent first (ties by value).
+    pub fn top(&self, n: usize) -> Vec<TopValue> {
+        let mut all: Vec<TopValue> = self.counts.values().map(|(c, v)| TopValue { value: v.clone(), count: *c }).collect();
+        all.sort_by(|a, b| b.count.cmp(&a.count).then_with(|| a.value.cmp(&b.value)));
+        all.truncate(n);
+        all
+    }
+
+    /// True when counts are exact; otherwise each may be low by
+    /// [`Self::max_undercount`].
+    pub fn is_exact(&self) -> bool {
+        !self.summarised
+    }
+
+    pub fn max_undercount(&self) -> u64 {
+        if self.summarised { self.total / (COUNTERS as u64 + 1) } else { 0 }
+    }
+
+    pub fn total(&self) -> u64 {
+        self.total
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn add(t: &mut TopValues, v: u64) {
+        t.add(v, || format!("v{v}"));
+    }
+
+    #[test]
+    fn exact_counts_for_few_values() {
+        let mut t = TopValues::default();
+        for v in [1, 2, 2, 3, 3, 3] {
+            add(&mut t, v);
+        }
+        assert!(t.is_exact());
+        let top = t.top(2);
+        assert_eq!(top, vec![TopValue { value: "v3".into(), count: 3 }, TopValue { value: "v2".into(), count: 2 }]);
+    }
+
+    #[test]
+    fn the_summary_keeps_heavy_values_within_its_bound() {
+        // 50,000 distinct noise values plus three heavy ones, interleaved.
+        let mut t = TopValues::default();
+        let mut halves = [TopValues::default(), TopValues::default()];
+        for i in 0..200_000u64 {
+            let v = match i % 4 {
+                0 => 1_000_000,
+                1 if i % 8 == 1 => 1_000_001,
+                2 if i % 16 == 2 => 1_000_002,
+                _ => i % 50_000,
+            };
+            add(&mut t, v);
+            add(&mut halves[(i % 2) as usize], v);
+        }
+        let [mut a, b] = halves;
+        a.merge(&b);
+        for summary in [&t, &a] {
+            assert!(!summary.is_exact());
+            let bound = summary.max_undercount();
+            assert!(bound <= 200_000 / 1001 + 1);
+            let top = summary.top(3);
+            let names: Vec<&str> = top.iter().map(|v| v.value.as_str()).collect();
+            assert_eq!(names, ["v1000000", "v1000001", "v1000002"]);
+            for (value, truth) in top.iter().zip([50_000u64, 25_000, 12_500]) {
+                assert!(value.count <= truth && truth - value.count <= bound, "{value:?} vs {truth} (bound {bound})");
+            }
+        }
+    }
+}
