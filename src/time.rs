@@ -30,9 +30,56 @@ pub fn civil_from_days(z: i64) -> (i64, u32, u32) {
     (if m <= 2 { y + 1 } else { y }, m, d)
 }
 
+/// Days since 1970-01-01 of a proleptic Gregorian date (the inverse,
+/// `days_from_civil`, from the same paper).
+pub fn days_from_civil(y: i64, m: u32, d: u32) -> i64 {
+    let y = if m <= 2 { y - 1 } else { y };
+    let era = y.div_euclid(400);
+    let yoe = y.rem_euclid(400);
+    let mp = (m as i64 + 9) % 12;
+    let doy = (153 * mp + 2) / 5 + d as i64 - 1;
+    let doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
+    era * 146_097 + doe - 719_468
+}
+
+/// Seconds since the epoch of an RFC 3339 timestamp with an offset
+/// (`2024-05-01T08:30:00.5+02:00`); `None` for anything else.
+pub fn parse_rfc3339(s: &str) -> Option<i64> {
+    let b = s.as_bytes();
+    if crate::shape::strings::classify(s) != Some(crate::shape::strings::Form::Timestamp) {
+        return None;
+    }
+    let num = |r: std::ops::Range<usize>| s.get(r)?.parse::<i64>().ok();
+    let days = days_from_civil(num(0..4)?, num(5..7)? as u32, num(8..10)? as u32);
+    let secs = days * 86_400 + num(11..13)? * 3600 + num(14..16)? * 60 + num(17..19)?;
+    let zone = b.iter().skip(19).position(|&c| matches!(c, b'Z' | b'z' | b'+' | b'-'))? + 19;
+    let offset = match b[zone] {
+        b'Z' | b'z' => 0,
+        sign => {
+            let minutes = num(zone + 1..zone + 3)? * 60 + num(zone + 4..zone + 6)?;
+            if sign == b'+' { minutes * 60 } else { -minutes * 60 }
+        }
+    };
+    Some(secs - offset)
+}
+
+/// Now, in seconds since the epoch.
+pub fn now_unix() -> i64 {
+    SystemTime::now().duration_since(UNIX_EPOCH).map_or(0, |d| d.as_secs() as i64)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn rfc3339_parses_to_the_epoch_second() {
+        assert_eq!(parse_rfc3339("1970-01-01T00:00:00Z"), Some(0));
+        assert_eq!(parse_rfc3339("2000-02-29T02:00:00+02:00"), Some(951_782_400));
+        assert_eq!(parse_rfc3339("1969-12-31T23:59:59.75Z"), Some(-1));
+        assert_eq!(parse_rfc3339("2000-02-29T00:00:00"), None, "no zone");
+        assert_eq!(days_from_civil(2000, 2, 29), 11_016);
+    }
 
     #[test]
     fn known_instants_format_correctly() {

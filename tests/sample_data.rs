@@ -56,3 +56,32 @@ fn the_later_drop_drifts_as_described() {
     let parquet = common::full(&sample("later/deliveries.parquet")).unwrap();
     assert_eq!(parquet.shape.find("rating").unwrap().declared.as_ref().unwrap().arrow, "Float32", "a type changed");
 }
+
+#[test]
+fn the_demo_shows_every_finding_where_the_readme_says() {
+    use plumbline::profile::findings::findings;
+    let scan = common::full(&sample("deliveries.jsonl")).unwrap();
+    let kinds = |path: &str| -> Vec<&'static str> { findings(scan.shape.find(path).unwrap()).iter().map(|f| f.kind).collect() };
+    let expect = [
+        ("note", "mostly_empty"),
+        ("currency", "single_value"),
+        ("delivery_id", "unique_per_row"),
+        ("zip_code", "mixed_kinds"),
+        ("parcel.declared_value", "numbers_as_text"),
+        ("tags[]", "case_variants"),
+        ("pickup.zone", "padded_text"),
+        ("rating", "placeholder_values"),
+        ("attributes.door_code", "placeholder_values"),
+        ("distance_km", "far_outliers"),
+        ("dropoff.at", "instants_in_the_future"),
+        ("status", "dominant_value"),
+    ];
+    for (path, kind) in expect {
+        assert!(kinds(path).contains(&kind), "{path}: {kind} not in {:?}", kinds(path));
+    }
+    assert!(!kinds("pickup.lat").contains(&"unique_per_row"), "distinct floats are not a key");
+    let outliers = findings(scan.shape.find("distance_km").unwrap()).into_iter().find(|f| f.kind == "far_outliers").unwrap();
+    assert_eq!(outliers.examples, vec!["999".to_string()]);
+    let variants = findings(scan.shape.find("tags[]").unwrap()).into_iter().find(|f| f.kind == "case_variants").unwrap();
+    assert!(variants.examples.iter().any(|g| g.contains("fragile") && g.contains("FRAGILE")), "{:?}", variants.examples);
+}

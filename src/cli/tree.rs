@@ -116,6 +116,12 @@ fn notes(f: &FieldShape, options: ReportOptions) -> String {
     if !forms.is_empty() {
         parts.push(format!("text that reads as: {}", forms.join(", ")));
     }
+    if f.stats.is_some() {
+        let found: Vec<&str> = crate::profile::findings::findings(f).iter().map(|x| x.kind).collect();
+        if !found.is_empty() {
+            parts.push(format!("findings: {}", found.join(", ")));
+        }
+    }
     if !options.no_examples {
         let examples: Vec<String> =
             f.minority_examples().iter().map(|(k, e)| format!("row {} {}: {}", e.row, k.name(), e.value)).collect();

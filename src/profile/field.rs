@@ -19,6 +19,23 @@ pub struct FieldStats {
     pub distinct: Distinct,
     /// Most frequent scalar values.
     pub top: TopValues,
+    /// Instants (timestamps with a zone, or RFC 3339 text), in epoch seconds.
+    pub instants: Option<Instants>,
+}
+
+/// The range of instants and how many lie after the profile started.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Instants {
+    pub min: i64,
+    pub max: i64,
+    pub count: u64,
+    pub future: u64,
+}
+
+/// When this profile started, in epoch seconds (for "in the future").
+pub fn profile_started() -> i64 {
+    static STARTED: std::sync::OnceLock<i64> = std::sync::OnceLock::new();
+    *STARTED.get_or_init(crate::time::now_unix)
 }
 
 impl FieldStats {
@@ -30,6 +47,18 @@ impl FieldStats {
 
     pub fn add_text(&mut self, s: &str) {
         self.text.get_or_insert_with(TextStats::new).add(s);
+        if let Some(secs) = crate::time::parse_rfc3339(s) {
+            self.add_instant(secs);
+        }
+    }
+
+    pub fn add_instant(&mut self, secs: i64) {
+        let future = (secs > profile_started()) as u64;
+        let i = self.instants.get_or_insert(Instants { min: secs, max: secs, count: 0, future: 0 });
+        i.min = i.min.min(secs);
+        i.max = i.max.max(secs);
+        i.count += 1;
+        i.future += future;
     }
 
     pub fn add_number(&mut self, x: f64) {
@@ -49,6 +78,16 @@ impl FieldStats {
         }
         self.distinct.merge(&other.distinct);
         self.top.merge(&other.top);
+        match (&mut self.instants, other.instants) {
+            (Some(mine), Some(theirs)) => {
+                mine.min = mine.min.min(theirs.min);
+                mine.max = mine.max.max(theirs.max);
+                mine.count += theirs.count;
+                mine.future += theirs.future;
+            }
+            (None, Some(theirs)) => self.instants = Some(theirs),
+            _ => {}
+        }
     }
 
     pub fn distinct_count(&self) -> Option<DistinctCount> {

@@ -6,6 +6,7 @@
 
 pub mod distinct;
 pub mod field;
+pub mod findings;
 pub mod hash;
 pub mod histogram;
 pub mod kll;

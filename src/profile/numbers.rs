@@ -104,6 +104,29 @@ impl NumberStats {
         })
     }
 
+    /// Quartiles and the counts below q1 − k·IQR and above q3 + k·IQR
+    /// (exact over the sample, else estimated from the sketch's ranks).
+    pub fn outside_fences(&self, k: f64) -> Option<(f64, f64, u64, u64)> {
+        let q = self.quantiles()?;
+        let (q1, q3) = (q.values[2], q.values[4]);
+        let iqr = q3 - q1;
+        let (lo, hi) = (q1 - k * iqr, q3 + k * iqr);
+        Some(match &self.exact {
+            Some(values) => {
+                let below = values.iter().filter(|v| **v < lo).count() as u64;
+                let above = values.iter().filter(|v| **v > hi).count() as u64;
+                (q1, q3, below, above)
+            }
+            None => {
+                let n = self.moments.count() as f64;
+                // Ranks are ≤-counts; below the low fence, take the count just under it.
+                let below = if self.moments.min()? < lo { (self.sketch.rank(lo) * n).round() as u64 } else { 0 };
+                let above = if self.moments.max()? > hi { ((1.0 - self.sketch.rank(hi)) * n).round() as u64 } else { 0 };
+                (q1, q3, below, above)
+            }
+        })
+    }
+
     /// numpy-`auto` bins; counts exact over the sample, else from the
     /// sketch's ranks (each count within rank error × n).
     pub fn histogram(&self) -> Option<Histogram> {

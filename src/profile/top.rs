@@ -79,6 +79,16 @@ impl TopValues {
         all
     }
 
+    /// Every value kept, with its count (all values while exact).
+    pub fn entries(&self) -> impl Iterator<Item = (&str, u64)> {
+        self.counts.values().map(|(c, v)| (v.as_str(), *c))
+    }
+
+    /// The count of the value shown as `shown`, if kept.
+    pub fn count_of(&self, shown: &str) -> Option<u64> {
+        self.counts.values().find(|(_, v)| v == shown).map(|(c, _)| *c)
+    }
+
     /// True when counts are exact; otherwise each may be low by
     /// [`Self::max_undercount`].
     pub fn is_exact(&self) -> bool {

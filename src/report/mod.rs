@@ -72,6 +72,9 @@ pub struct FieldEntry {
     pub missing: u64,
     /// For mixed fields: values of the minority kinds, with their row.
     pub examples: Vec<ExampleEntry>,
+    /// Quality notes with the values behind them (absent for `--shape-only`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub findings: Option<Vec<crate::profile::findings::Finding>>,
     /// Statistics (absent for `--shape-only`).
     #[serde(flatten, skip_serializing_if = "Option::is_none")]
     pub stats: Option<StatsEntry>,
@@ -121,6 +124,14 @@ pub struct StatsEntry {
     /// Text with leading or trailing whitespace.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub padded: Option<u64>,
+    /// Instants (zoned timestamps, RFC 3339 text): earliest and latest, UTC.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub earliest: Option<String>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub latest: Option<String>,
+    /// Share of instants after the profile started.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub future_share: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub nan: Option<u64>,
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -209,6 +220,13 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
         nulls: f.nulls(),
         missing: f.missing,
         examples,
+        findings: f.stats.is_some().then(|| {
+            let mut found = crate::profile::findings::findings(f);
+            if options.no_examples {
+                found.iter_mut().for_each(|x| x.examples.clear());
+            }
+            found
+        }),
         stats: f.stats.as_deref().map(|s| stats_entry(f, s, options)),
     }
 }
@@ -253,6 +271,9 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, option
         }),
         empty: stats.text.as_ref().map(|t| t.empty),
         padded: stats.text.as_ref().map(|t| t.padded),
+        earliest: stats.instants.map(|i| crate::time::rfc3339_from_unix(i.min)),
+        latest: stats.instants.map(|i| crate::time::rfc3339_from_unix(i.max)),
+        future_share: stats.instants.map(|i| i.future as f64 / i.count.max(1) as f64),
         nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
         infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }

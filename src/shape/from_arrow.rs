@@ -238,18 +238,27 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
         Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
-        Timestamp(unit, _) => match unit {
-            arrow_schema::TimeUnit::Second => observe_primitive_raw::<TimestampSecondType>(node, Kind::Timestamp, n, array, present),
-            arrow_schema::TimeUnit::Millisecond => {
-                observe_primitive_raw::<TimestampMillisecondType>(node, Kind::Timestamp, n, array, present)
+        Timestamp(unit, zone) => {
+            let (scale, raw) = match unit {
+                arrow_schema::TimeUnit::Second => (1, array.as_primitive::<TimestampSecondType>().values().clone()),
+                arrow_schema::TimeUnit::Millisecond => (1_000, array.as_primitive::<TimestampMillisecondType>().values().clone()),
+                arrow_schema::TimeUnit::Microsecond => (1_000_000, array.as_primitive::<TimestampMicrosecondType>().values().clone()),
+                arrow_schema::TimeUnit::Nanosecond => (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone()),
+            };
+            if let Some(stats) = node.stats.as_deref_mut() {
+                for i in positions(present, array.len()) {
+                    let v = raw[i];
+                    stats.add_scalar(hash::other(&v.to_le_bytes()), || {
+                        arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()
+                    });
+                    // Only zoned timestamps are instants; local ones have no place in time.
+                    if zone.is_some() {
+                        stats.add_instant(v.div_euclid(scale));
+                    }
+                }
             }
-            arrow_schema::TimeUnit::Microsecond => {
-                observe_primitive_raw::<TimestampMicrosecondType>(node, Kind::Timestamp, n, array, present)
-            }
-            arrow_schema::TimeUnit::Nanosecond => {
-                observe_primitive_raw::<TimestampNanosecondType>(node, Kind::Timestamp, n, array, present)
-            }
-        },
+            node.kinds.add(Kind::Timestamp, n);
+        }
         other => node.kinds.add(kind_of(other), n),
     }
 }
