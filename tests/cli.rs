@@ -46,10 +46,14 @@ fn profile_prints_the_field_tree_and_writes_the_report() {
     let out = stdout(&o);
     assert!(out.contains("Parquet") && out.contains("3,000 rows") && out.contains("row groups: 3"), "{out}");
     assert!(out.contains("    seq") && out.contains("int16"), "nested fields indented with their types:\n{out}");
+    let seq = out.lines().find(|l| l.trim_start().starts_with("seq")).unwrap();
+    assert!(seq.contains("  4  ") && seq.contains("1 … 4"), "distinct and range columns: {seq}");
+    assert!(out.contains("findings: instants_in_the_future"), "{out}");
 
     let r = read_json(&report);
     assert_eq!(r["plumbline_report"], 1);
     assert_eq!(r["partial"], false);
+    assert_eq!(r["sampled"], false);
     assert_eq!(r["source"]["format"], "Parquet");
     assert_eq!(r["source"]["rows"], 3000);
     assert_eq!(r["source"]["parts"], 1);

@@ -71,7 +71,20 @@ fn run_profile(args: &ProfileArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
     let options = ScanOptions { shape_only: args.shape_only };
     let stop = AtomicBool::new(false);
-    let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
+    // Drawn only when stderr is a terminal (indicatif checks).
+    let bar = indicatif::ProgressBar::with_draw_target(None, indicatif::ProgressDrawTarget::stderr());
+    if let Ok(style) = indicatif::ProgressStyle::with_template("reading {percent:>3}% [{bar:32}] {elapsed} (about {eta} left)") {
+        bar.set_style(style.progress_chars("=> "));
+    }
+    let mut show_progress = |p: crate::source::Progress| {
+        if p.total > 0 {
+            bar.set_length(p.total);
+            bar.set_position(p.done.min(p.total));
+        }
+    };
+    let scanned = scan::scan_path(&args.path, open, options, &stop, &mut show_progress);
+    bar.finish_and_clear();
+    let scan = match scanned {
         Ok(s) => s,
         Err(e) => return fail(&e),
     };

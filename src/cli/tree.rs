@@ -62,7 +62,8 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
     }
     out.push('\n');
 
-    let mut rows: Vec<[String; 5]> = vec![["field", "declared", "observed", "counts", "notes"].map(String::from)];
+    let mut rows: Vec<[String; 7]> =
+        vec![["field", "declared", "observed", "counts", "distinct", "range", "notes"].map(String::from)];
     scan.shape.walk(|f, depth| {
         let name = format!("{}{}", "  ".repeat(depth), display_name(f));
         let declared = f.declared.as_ref().map_or("—".to_string(), |d| d.short_label());
@@ -72,25 +73,44 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
             group_digits(f.nulls()),
             group_digits(f.missing)
         );
-        rows.push([name, declared, crate::shape::observed_label(&f.kinds), counts, notes(f, options)]);
+        let (distinct, range) = summary(f);
+        rows.push([name, declared, crate::shape::observed_label(&f.kinds), counts, distinct, range, notes(f, options)]);
     });
-    let widths: Vec<usize> = (0..4).map(|c| rows.iter().map(|r| r[c].chars().count()).max().unwrap_or(0)).collect();
+    let widths: Vec<usize> = (0..6).map(|c| rows.iter().map(|r| r[c].chars().count()).max().unwrap_or(0)).collect();
     for r in rows {
-        let line = format!(
-            "{:<w0$}  {:<w1$}  {:<w2$}  {:<w3$}  {}",
-            r[0],
-            r[1],
-            r[2],
-            r[3],
-            r[4],
-            w0 = widths[0],
-            w1 = widths[1],
-            w2 = widths[2],
-            w3 = widths[3]
-        );
+        let mut line = String::new();
+        for (cell, width) in r.iter().zip(&widths) {
+            let _ = write!(line, "{cell:<width$}  ");
+        }
+        line.push_str(&r[6]);
         let _ = writeln!(out, "{}", line.trim_end());
     }
     out
+}
+
+/// Distinct count (`≈` when sketched) and the value range, when profiled.
+fn summary(f: &FieldShape) -> (String, String) {
+    let Some(stats) = f.stats.as_deref() else { return (String::new(), String::new()) };
+    let distinct = stats.distinct_count().map_or(String::new(), |d| {
+        format!("{}{}", if d.exact { "" } else { "≈" }, group_digits(d.value))
+    });
+    let range = if let (Some((lo, hi)), crate::shape::Unified::One(crate::shape::Kind::Int)) = (f.kinds.int_range, f.kinds.unified()) {
+        format!("{lo} … {hi}")
+    } else if let Some(n) = stats.numbers.as_ref().filter(|n| n.moments.count() > 0) {
+        format!("{} … {}", short(n.moments.min().unwrap_or(0.0)), short(n.moments.max().unwrap_or(0.0)))
+    } else if let Some(i) = stats.instants {
+        format!("{} … {}", crate::time::rfc3339_from_unix(i.min), crate::time::rfc3339_from_unix(i.max))
+    } else {
+        String::new()
+    };
+    (distinct, range)
+}
+
+/// A number with at most six decimals (scientific when very large or small).
+fn short(v: f64) -> String {
+    let s = format!("{v:.6}");
+    let s = if v.abs() >= 1e6 || (v != 0.0 && v.abs() < 1e-3) { format!("{v:.4e}") } else { s };
+    if s.contains('.') && !s.contains('e') { s.trim_end_matches('0').trim_end_matches('.').to_string() } else { s }
 }
 
 fn display_name(f: &FieldShape) -> String {

@@ -31,6 +31,8 @@ pub struct Report {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub coverage_note: Option<String>,
     pub shape_only: bool,
+    /// True when rows were sampled rather than all read (not yet offered).
+    pub sampled: bool,
     pub examples_included: bool,
     pub source: SourceSection,
     pub fields: Vec<FieldEntry>,
@@ -181,6 +183,7 @@ pub fn build(scan: &Scan, options: ReportOptions) -> Report {
         partial: scan.coverage.is_partial(),
         coverage_note: scan.coverage.describe(),
         shape_only: matches!(scan.coverage, crate::scan::Coverage::SchemaOnly | crate::scan::Coverage::FirstRows(_)),
+        sampled: false,
         examples_included: !options.no_examples,
         source: SourceSection {
             path: info.path.display().to_string(),
