@@ -65,6 +65,10 @@ fn profile_prints_the_field_tree_and_writes_the_report() {
     assert_eq!(eta["declared_type"], "Timestamp(µs, \"+00:00\")");
     assert_eq!(eta["parquet"]["physical"], "INT64");
     assert!(eta["parquet"]["logical"].as_str().unwrap().starts_with("TIMESTAMP(MICROS"));
+    let stops = fields.iter().find(|f| f["path"] == "stops").unwrap();
+    assert_eq!((stops["list_lengths"]["min"].as_f64(), stops["list_lengths"]["max"].as_f64()), (Some(1.0), Some(4.0)));
+    let attributes = fields.iter().find(|f| f["path"] == "attributes").unwrap();
+    assert!(attributes["list_lengths"]["max"].as_f64().unwrap() <= 3.0, "map entries per row");
     let dropoff = fields.iter().find(|f| f["path"] == "dropoff").unwrap();
     assert_eq!(dropoff["count"], 3000);
     assert_eq!(dropoff["nulls"], 144);

@@ -21,6 +21,8 @@ pub struct FieldStats {
     pub top: TopValues,
     /// Instants (timestamps with a zone, or RFC 3339 text), in epoch seconds.
     pub instants: Option<Instants>,
+    /// Lists and maps: how many elements each holds.
+    pub list_lengths: Option<NumberStats>,
 }
 
 /// The range of instants and how many lie after the profile started.
@@ -52,6 +54,10 @@ impl FieldStats {
         }
     }
 
+    pub fn add_list_length(&mut self, n: usize) {
+        self.list_lengths.get_or_insert_with(NumberStats::new).add(n as f64);
+    }
+
     pub fn add_instant(&mut self, secs: i64) {
         let future = (secs > profile_started()) as u64;
         let i = self.instants.get_or_insert(Instants { min: secs, max: secs, count: 0, future: 0 });
@@ -78,6 +84,11 @@ impl FieldStats {
         }
         self.distinct.merge(&other.distinct);
         self.top.merge(&other.top);
+        match (&mut self.list_lengths, &other.list_lengths) {
+            (Some(mine), Some(theirs)) => mine.merge(theirs),
+            (None, Some(theirs)) => self.list_lengths = Some(theirs.clone()),
+            _ => {}
+        }
         match (&mut self.instants, other.instants) {
             (Some(mine), Some(theirs)) => {
                 mine.min = mine.min.min(theirs.min);

@@ -121,6 +121,9 @@ pub struct StatsEntry {
     /// Text: length in characters.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub lengths: Option<Lengths>,
+    /// Lists and maps: elements per value `{min, mean, max, histogram}`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub list_lengths: Option<Lengths>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub empty: Option<u64>,
     /// Text with leading or trailing whitespace.
@@ -234,6 +237,11 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
     }
 }
 
+fn lengths(n: &crate::profile::numbers::NumberStats) -> Option<Lengths> {
+    let m = &n.moments;
+    Some(Lengths { min: m.min()?, mean: m.mean()?, max: m.max()?, histogram: n.histogram() })
+}
+
 fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, options: ReportOptions) -> StatsEntry {
     let distinct = stats.distinct_count();
     let numbers = stats.numbers.as_ref().filter(|n| n.moments.count() > 0);
@@ -268,10 +276,8 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, option
         top: (!options.no_examples && stats.top.total() > 0).then(|| stats.top.top(TOP_VALUES)),
         top_exact: (stats.top.total() > 0).then(|| stats.top.is_exact()),
         top_max_undercount: (!stats.top.is_exact()).then(|| stats.top.max_undercount()),
-        lengths: stats.text.as_ref().and_then(|t| {
-            let m = &t.lengths.moments;
-            Some(Lengths { min: m.min()?, mean: m.mean()?, max: m.max()?, histogram: t.lengths.histogram() })
-        }),
+        lengths: stats.text.as_ref().and_then(|t| lengths(&t.lengths)),
+        list_lengths: stats.list_lengths.as_ref().and_then(lengths),
         empty: stats.text.as_ref().map(|t| t.empty),
         padded: stats.text.as_ref().map(|t| t.padded),
         earliest: stats.instants.map(|i| crate::time::rfc3339_from_unix(i.min)),

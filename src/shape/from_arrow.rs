@@ -166,8 +166,12 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Map(_, _) => {
             node.kinds.add(Kind::Map, n);
             let m = array.as_map();
-            let ranges = positions(present, m.len()).map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize));
-            let mask = ranges_mask(m.entries().len(), ranges);
+            let ranges: Vec<(usize, usize)> =
+                positions(present, m.len()).map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize)).collect();
+            if let Some(stats) = node.stats.as_deref_mut() {
+                ranges.iter().for_each(|&(_, len)| stats.add_list_length(len));
+            }
+            let mask = ranges_mask(m.entries().len(), ranges.into_iter());
             let entries = m.entries();
             if let DataType::Struct(kv) = entries.data_type()
                 && kv.len() == 2
@@ -337,7 +341,11 @@ where
 /// A list's elements: the (offset, length) ranges of its present values.
 fn observe_list(node: &mut FieldShape, n: u64, field: &Field, values: &dyn Array, ranges: impl Iterator<Item = (usize, usize)>) {
     node.kinds.add(Kind::Array, n);
-    let mask = ranges_mask(values.len(), ranges);
+    let ranges: Vec<(usize, usize)> = ranges.collect();
+    if let Some(stats) = node.stats.as_deref_mut() {
+        ranges.iter().for_each(|&(_, len)| stats.add_list_length(len));
+    }
+    let mask = ranges_mask(values.len(), ranges.into_iter());
     observe_array(child_for(node, field.name(), field, Role::Element), values, Some(&mask));
 }
 

@@ -81,6 +81,9 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
         }
         Value::Array(items) => {
             node.kinds.add(Kind::Array, 1);
+            if let Some(stats) = node.stats.as_deref_mut() {
+                stats.add_list_length(items.len());
+            }
             if !items.is_empty() {
                 let element = node.child_mut("[]", Role::Element);
                 for item in items {
