@@ -8,8 +8,7 @@
 //! Needs Python 3 with numpy (`.ci/run` installs it). Without it the test says
 //! so loudly, and fails when `CI=true`.
 
-use std::path::Path;
-use std::process::Command;
+mod common;
 
 use plumbline::profile::{histogram, quantiles};
 use serde_json::Value;
@@ -17,23 +16,8 @@ use serde_json::Value;
 fn reference() -> Option<Value> {
     let dir = tempfile::tempdir().unwrap();
     let out = dir.path().join("numpy.json");
-    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/numpy_stats.py");
-    let run = Command::new("python3").arg(&script).arg(&out).output();
-    match run {
-        Ok(o) if o.status.success() => Some(serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap()),
-        other => {
-            let why = match other {
-                Ok(o) => String::from_utf8_lossy(&o.stderr).into_owned(),
-                Err(e) => e.to_string(),
-            };
-            let message = format!("REFERENCE CHECK NOT RUN: python3 with numpy is needed ({})", why.trim());
-            if std::env::var("CI").is_ok_and(|v| v == "true") {
-                panic!("{message}");
-            }
-            eprintln!("\n*** {message} ***\n");
-            None
-        }
-    }
+    common::run_reference_script("numpy_stats.py", &[out.as_os_str()], "numpy")?;
+    Some(serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap())
 }
 
 fn floats(v: &Value) -> Vec<f64> {

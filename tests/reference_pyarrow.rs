@@ -11,9 +11,6 @@
 
 mod common;
 
-use std::path::Path;
-use std::process::Command;
-
 use arrow_schema::{DataType, TimeUnit};
 use plumbline::scan::Coverage;
 use serde_json::Value;
@@ -70,21 +67,7 @@ fn normalise(pyarrow: &str) -> String {
 
 fn reference_files() -> Option<(tempfile::TempDir, Value)> {
     let out = tempfile::tempdir().unwrap();
-    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/tricky_types.py");
-    let run = Command::new("python3").arg(&script).arg(out.path()).output();
-    let ok = matches!(&run, Ok(o) if o.status.success());
-    if !ok {
-        let why = match &run {
-            Ok(o) => String::from_utf8_lossy(&o.stderr).into_owned(),
-            Err(e) => e.to_string(),
-        };
-        let message = format!("REFERENCE CHECK NOT RUN: python3 with pyarrow is needed ({})", why.trim());
-        if std::env::var("CI").is_ok_and(|v| v == "true") {
-            panic!("{message}");
-        }
-        eprintln!("\n*** {message} ***\n");
-        return None;
-    }
+    common::run_reference_script("tricky_types.py", &[out.path().as_os_str()], "pyarrow")?;
     let expected = serde_json::from_str(&std::fs::read_to_string(out.path().join("expected.json")).unwrap()).unwrap();
     Some((out, expected))
 }

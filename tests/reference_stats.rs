@@ -13,34 +13,15 @@
 
 mod common;
 
-use std::path::Path;
-use std::process::Command;
-
 use plumbline::profile::kll::RANK_ERROR;
 use plumbline::report::{self, ReportOptions};
 use serde_json::Value;
 
 fn reference() -> Option<(tempfile::TempDir, Value)> {
     let dir = tempfile::tempdir().unwrap();
-    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/pyarrow_stats.py");
-    match Command::new("python3").arg(&script).arg(dir.path()).output() {
-        Ok(o) if o.status.success() => {
-            let text = std::fs::read_to_string(dir.path().join("expected.json")).unwrap();
-            Some((dir, serde_json::from_str(&text).unwrap()))
-        }
-        other => {
-            let why = match other {
-                Ok(o) => String::from_utf8_lossy(&o.stderr).into_owned(),
-                Err(e) => e.to_string(),
-            };
-            let message = format!("REFERENCE CHECK NOT RUN: python3 with pyarrow and numpy is needed ({})", why.trim());
-            if std::env::var("CI").is_ok_and(|v| v == "true") {
-                panic!("{message}");
-            }
-            eprintln!("\n*** {message} ***\n");
-            None
-        }
-    }
+    common::run_reference_script("pyarrow_stats.py", &[dir.path().as_os_str()], "pyarrow and numpy")?;
+    let text = std::fs::read_to_string(dir.path().join("expected.json")).unwrap();
+    Some((dir, serde_json::from_str(&text).unwrap()))
 }
 
 fn f(v: &Value) -> f64 {

@@ -69,3 +69,26 @@ pub fn full(path: &Path) -> Result<Scan, SourceError> {
 pub fn shape_only(path: &Path) -> Result<Scan, SourceError> {
     scan_with_timeout(path, ScanOptions { shape_only: true }, Duration::from_secs(30))
 }
+
+/// Runs a reference script under `tests/reference/` with `args`. When Python
+/// or the package it needs is missing, says so loudly and returns `None` —
+/// or fails under CI (`CI=true`) rather than pass without checking.
+pub fn run_reference_script(script: &str, args: &[&std::ffi::OsStr], needs: &str) -> Option<()> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference").join(script);
+    let run = std::process::Command::new("python3").arg(&path).args(args).output();
+    match run {
+        Ok(o) if o.status.success() => Some(()),
+        other => {
+            let why = match other {
+                Ok(o) => String::from_utf8_lossy(&o.stderr).into_owned(),
+                Err(e) => e.to_string(),
+            };
+            let message = format!("REFERENCE CHECK NOT RUN: python3 with {needs} is needed ({})", why.trim());
+            if std::env::var("CI").is_ok_and(|v| v == "true") {
+                panic!("{message}");
+            }
+            eprintln!("\n*** {message} ***\n");
+            None
+        }
+    }
+}
