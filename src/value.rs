@@ -112,6 +112,10 @@ pub fn write_json_string(out: &mut String, s: &str) {
 
 /// Cuts `s` to at most `max_chars` characters, marking the cut with `…`.
 pub fn truncate_chars(mut s: String, max_chars: usize) -> String {
+    // No more bytes than allowed characters: nothing to cut.
+    if s.len() <= max_chars {
+        return s;
+    }
     if let Some((idx, _)) = s.char_indices().nth(max_chars) {
         s.truncate(idx);
         s.push('…');

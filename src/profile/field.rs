@@ -3,7 +3,7 @@
 use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
 use super::text::TextStats;
-use super::top::TopValues;
+use super::top::{Kept, TopValues};
 use crate::value::truncate_chars;
 
 /// Characters kept of a top value as shown.
@@ -41,10 +41,13 @@ pub fn profile_started() -> i64 {
 }
 
 impl FieldStats {
-    /// A scalar value: its hash for distinct and top counts, and how to show it.
-    pub fn add_scalar(&mut self, hash: u64, show: impl FnOnce() -> String) {
+    /// A scalar value: its hash for distinct and top counts, and the value.
+    pub fn add_scalar(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.distinct.add_hash(hash);
-        self.top.add(hash, || truncate_chars(show(), SHOWN_CHARS));
+        self.top.add(hash, || match keep() {
+            Kept::Text(s) => Kept::Text(truncate_chars(s, SHOWN_CHARS)),
+            other => other,
+        });
     }
 
     pub fn add_text(&mut self, s: &str) {

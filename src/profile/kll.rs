@@ -23,6 +23,9 @@ pub const RANK_ERROR: f64 = 0.01;
 #[derive(Debug, Clone)]
 pub struct Kll {
     levels: Vec<Vec<f64>>,
+    /// Capacity of each level, recomputed when a level is added (computing
+    /// it per value was a tenth of a whole profile's time).
+    capacities: Vec<usize>,
     count: u64,
     min: f64,
     max: f64,
@@ -31,7 +34,14 @@ pub struct Kll {
 
 impl Default for Kll {
     fn default() -> Self {
-        Kll { levels: vec![Vec::new()], count: 0, min: f64::INFINITY, max: f64::NEG_INFINITY, coin: 0x9E37_79B9_7F4A_7C15 }
+        Kll {
+            levels: vec![Vec::new()],
+            capacities: capacities(1),
+            count: 0,
+            min: f64::INFINITY,
+            max: f64::NEG_INFINITY,
+            coin: 0x9E37_79B9_7F4A_7C15,
+        }
     }
 }
 
@@ -52,8 +62,12 @@ impl Kll {
     }
 
     fn capacity(&self, level: usize) -> usize {
-        let depth = (self.levels.len() - 1 - level) as i32;
-        ((K as f64) * (2.0f64 / 3.0).powi(depth)).ceil().max(2.0) as usize
+        self.capacities[level]
+    }
+
+    fn push_level(&mut self) {
+        self.levels.push(Vec::new());
+        self.capacities = capacities(self.levels.len());
     }
 
     fn flip(&mut self) -> usize {
@@ -70,7 +84,7 @@ impl Kll {
         while level < self.levels.len() {
             if self.levels[level].len() >= self.capacity(level) {
                 if level + 1 == self.levels.len() {
-                    self.levels.push(Vec::new());
+                    self.push_level();
                 }
                 let offset = self.flip();
                 let mut items = std::mem::take(&mut self.levels[level]);
@@ -95,7 +109,7 @@ impl Kll {
             return;
         }
         while self.levels.len() < other.levels.len() {
-            self.levels.push(Vec::new());
+            self.push_level();
         }
         for (mine, theirs) in self.levels.iter_mut().zip(&other.levels) {
             mine.extend_from_slice(theirs);
@@ -152,6 +166,17 @@ impl Kll {
     pub fn retained(&self) -> usize {
         self.levels.iter().map(Vec::len).sum()
     }
+}
+
+/// Level capacities for `levels` levels: k at the top, shrinking by 2/3
+/// per level below it, at least 2.
+fn capacities(levels: usize) -> Vec<usize> {
+    (0..levels)
+        .map(|level| {
+            let depth = (levels - 1 - level) as i32;
+            ((K as f64) * (2.0f64 / 3.0).powi(depth)).ceil().max(2.0) as usize
+        })
+        .collect()
 }
 
 #[cfg(test)]

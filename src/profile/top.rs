@@ -6,15 +6,39 @@
 
 use std::collections::HashMap;
 
+use super::distinct::PassThrough;
+
+/// Keys are value hashes already.
+type Build = std::hash::BuildHasherDefault<PassThrough>;
+
 /// Distinct values counted exactly before summarising.
 pub const EXACT_VALUES: usize = 10_000;
 /// Counters kept by the summary.
 pub const COUNTERS: usize = 1_000;
 
+/// A kept value, rendered as text only when reported (most values seen
+/// by a summary are dropped again, so rendering each would be waste).
+#[derive(Debug, Clone, PartialEq)]
+pub enum Kept {
+    Int(i128),
+    Float(f64),
+    Text(String),
+}
+
+impl Kept {
+    pub fn render(&self) -> String {
+        match self {
+            Kept::Int(v) => v.to_string(),
+            Kept::Float(v) => v.to_string(),
+            Kept::Text(s) => s.clone(),
+        }
+    }
+}
+
 #[derive(Debug, Clone, Default)]
 pub struct TopValues {
-    /// By value hash: count and the value as shown.
-    counts: HashMap<u64, (u64, String)>,
+    /// By value hash: count and the value.
+    counts: HashMap<u64, (u64, Kept), Build>,
     /// Total added (for the error bound once summarised).
     total: u64,
     summarised: bool,
@@ -28,18 +52,21 @@ pub struct TopValue {
 }
 
 impl TopValues {
-    /// Adds a value by its hash; `show` renders it the first time it is seen.
-    pub fn add(&mut self, hash: u64, show: impl FnOnce() -> String) {
+    /// Adds a value by its hash; `keep` gives the value the first time it is seen.
+    pub fn add(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.total += 1;
         if let Some(entry) = self.counts.get_mut(&hash) {
             entry.0 += 1;
             return;
         }
-        self.counts.insert(hash, (1, show()));
+        self.counts.insert(hash, (1, keep()));
         if !self.summarised && self.counts.len() > EXACT_VALUES {
             self.summarised = true;
             self.shrink();
-        } else if self.summarised && self.counts.len() > COUNTERS {
+        } else if self.summarised && self.counts.len() > 2 * COUNTERS {
+            // Shrinking back to k once 2k counters accumulate keeps the cost
+            // per value constant; it is a merge with a summary of the newcomers,
+            // so the n / (k + 1) bound holds.
             self.shrink();
         }
     }
@@ -73,20 +100,15 @@ impl TopValues {
 
     /// The `n` most frequent values, most frequent first (ties by value).
     pub fn top(&self, n: usize) -> Vec<TopValue> {
-        let mut all: Vec<TopValue> = self.counts.values().map(|(c, v)| TopValue { value: v.clone(), count: *c }).collect();
+        let mut all: Vec<TopValue> = self.counts.values().map(|(c, v)| TopValue { value: v.render(), count: *c }).collect();
         all.sort_by(|a, b| b.count.cmp(&a.count).then_with(|| a.value.cmp(&b.value)));
         all.truncate(n);
         all
     }
 
-    /// Every value kept, with its count (all values while exact).
-    pub fn entries(&self) -> impl Iterator<Item = (&str, u64)> {
-        self.counts.values().map(|(c, v)| (v.as_str(), *c))
-    }
-
-    /// The count of the value shown as `shown`, if kept.
-    pub fn count_of(&self, shown: &str) -> Option<u64> {
-        self.counts.values().find(|(_, v)| v == shown).map(|(c, _)| *c)
+    /// Every value kept, as text, with its count (all values while exact).
+    pub fn entries(&self) -> impl Iterator<Item = (String, u64)> + '_ {
+        self.counts.values().map(|(c, v)| (v.render(), *c))
     }
 
     /// True when counts are exact; otherwise each may be low by
@@ -109,7 +131,7 @@ mod tests {
     use super::*;
 
     fn add(t: &mut TopValues, v: u64) {
-        t.add(v, || format!("v{v}"));
+        t.add(v, || Kept::Text(format!("v{v}")));
     }
 
     #[test]

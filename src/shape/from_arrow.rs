@@ -13,6 +13,7 @@ use arrow_schema::{DataType, Field, UnionMode};
 use super::declared::Declared;
 use super::{FieldShape, Kind, Role};
 use crate::profile::hash;
+use crate::profile::top::Kept;
 
 pub fn observe_batch(root: &mut FieldShape, batch: &RecordBatch) {
     let schema = batch.schema();
@@ -220,7 +221,7 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             if let Some(stats) = node.stats.as_deref_mut() {
                 for i in positions(present, a.len()) {
                     let b = a.value(i);
-                    stats.add_scalar(hash::bool(b), || b.to_string());
+                    stats.add_scalar(hash::bool(b), || Kept::Text(b.to_string()));
                 }
             }
             node.kinds.add(Kind::Bool, n);
@@ -253,7 +254,7 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
                 for i in positions(present, array.len()) {
                     let v = raw[i];
                     stats.add_scalar(hash::other(&v.to_le_bytes()), || {
-                        arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()
+                        Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default())
                     });
                     // Only zoned timestamps are instants; local ones have no place in time.
                     if zone.is_some() {
@@ -272,7 +273,7 @@ fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item
     match node.stats.as_deref_mut() {
         Some(stats) => values.for_each(|v| {
             forms.observe(v);
-            stats.add_scalar(hash::string(v), || v.to_string());
+            stats.add_scalar(hash::string(v), || Kept::Text(v.to_string()));
             stats.add_text(v);
         }),
         None => values.for_each(|v| forms.observe(v)),
@@ -286,7 +287,7 @@ fn observe_floats(node: &mut FieldShape, n: u64, values: impl Iterator<Item = f6
         for v in values {
             stats.add_number(v);
             if !v.is_nan() {
-                stats.add_scalar(hash::float(v), || v.to_string());
+                stats.add_scalar(hash::float(v), || Kept::Float(v));
             }
         }
     }
@@ -304,7 +305,7 @@ fn observe_raw<'a>(
 ) {
     if let Some(stats) = node.stats.as_deref_mut() {
         for (i, bytes) in values {
-            stats.add_scalar(hash::other(bytes), || arrow_cast::display::array_value_to_string(array, i).unwrap_or_default());
+            stats.add_scalar(hash::other(bytes), || Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()));
         }
     }
     node.kinds.add(kind, n);
@@ -331,7 +332,7 @@ where
             let raw: i128 = a.values()[i].into();
             stats.add_number(raw as f64 / divisor);
             stats.add_scalar(hash::other(&raw.to_le_bytes()), || {
-                arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()
+                Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default())
             });
         }
     }
@@ -375,7 +376,7 @@ where
         n += 1;
         if let Some(stats) = stats.as_deref_mut() {
             stats.add_number(v as f64);
-            stats.add_scalar(hash::int(v), || v.to_string());
+            stats.add_scalar(hash::int(v), || Kept::Int(v));
         }
     }
     node.kinds.add(Kind::Int, n);

@@ -3,6 +3,7 @@
 
 use super::{EXAMPLE_CHARS, FieldShape, Kind, Role};
 use crate::profile::hash;
+use crate::profile::top::Kept;
 use crate::value::{Value, truncate_chars};
 
 pub fn observe_rows(root: &mut FieldShape, rows: &[Value], first_row: u64) {
@@ -26,7 +27,7 @@ fn observe_int(node: &mut FieldShape, v: i128) {
     node.kinds.add_int(v);
     if let Some(stats) = node.stats.as_deref_mut() {
         stats.add_number(v as f64);
-        stats.add_scalar(hash::int(v), || v.to_string());
+        stats.add_scalar(hash::int(v), || Kept::Int(v));
     }
 }
 
@@ -40,7 +41,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
         Value::Bool(b) => {
             node.kinds.add(Kind::Bool, 1);
             if let Some(stats) = node.stats.as_deref_mut() {
-                stats.add_scalar(hash::bool(*b), || b.to_string());
+                stats.add_scalar(hash::bool(*b), || Kept::Text(b.to_string()));
             }
             Kind::Bool
         }
@@ -56,7 +57,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::Decimal, 1);
             if let Some(stats) = node.stats.as_deref_mut() {
                 stats.add_number(digits.parse::<f64>().unwrap_or(f64::NAN));
-                stats.add_scalar(hash::other(digits.as_bytes()), || digits.to_string());
+                stats.add_scalar(hash::other(digits.as_bytes()), || Kept::Text(digits.to_string()));
             }
             Kind::Decimal
         }
@@ -65,7 +66,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             if let Some(stats) = node.stats.as_deref_mut() {
                 stats.add_number(*f);
                 if !f.is_nan() {
-                    stats.add_scalar(hash::float(*f), || f.to_string());
+                    stats.add_scalar(hash::float(*f), || Kept::Float(*f));
                 }
             }
             Kind::Float
@@ -74,7 +75,7 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
             node.kinds.add(Kind::String, 1);
             node.kinds.forms.observe(s);
             if let Some(stats) = node.stats.as_deref_mut() {
-                stats.add_scalar(hash::string(s), || s.clone());
+                stats.add_scalar(hash::string(s), || Kept::Text(s.clone()));
                 stats.add_text(s);
             }
             Kind::String
