@@ -87,15 +87,15 @@ impl Kll {
                     self.push_level();
                 }
                 let offset = self.flip();
+                // Work in place so the level keeps its allocation.
                 let mut items = std::mem::take(&mut self.levels[level]);
                 items.sort_by(f64::total_cmp);
                 // An odd value out stays behind, so the weights add up exactly.
-                if items.len() % 2 == 1 {
-                    let stay = items.pop().expect("odd length");
-                    self.levels[level].push(stay);
-                }
-                let promoted = items.into_iter().skip(offset).step_by(2);
-                self.levels[level + 1].extend(promoted);
+                let stay = if items.len() % 2 == 1 { items.pop() } else { None };
+                self.levels[level + 1].extend(items.iter().skip(offset).step_by(2));
+                items.clear();
+                items.extend(stay);
+                self.levels[level] = items;
                 // Capacities depend on the number of levels; look again from the bottom.
                 level = 0;
                 continue;
