@@ -69,6 +69,12 @@ fn profile_prints_the_field_tree_and_writes_the_report() {
     assert_eq!((stops["list_lengths"]["min"].as_f64(), stops["list_lengths"]["max"].as_f64()), (Some(1.0), Some(4.0)));
     let attributes = fields.iter().find(|f| f["path"] == "attributes").unwrap();
     assert!(attributes["list_lengths"]["max"].as_f64().unwrap() <= 3.0, "map entries per row");
+    let dropoff_at = fields.iter().find(|f| f["path"] == "dropoff.at").unwrap();
+    let calendar = &dropoff_at["calendar"];
+    assert_eq!(calendar["unit"], "year", "73 years ahead stretch the range");
+    let counted: u64 = calendar["buckets"].as_array().unwrap().iter().map(|b| b["count"].as_u64().unwrap()).sum();
+    assert_eq!(counted, 2856, "every instant in a bucket");
+    assert_eq!(calendar["buckets"][0]["label"], "2026");
     let dropoff = fields.iter().find(|f| f["path"] == "dropoff").unwrap();
     assert_eq!(dropoff["count"], 3000);
     assert_eq!(dropoff["nulls"], 144);

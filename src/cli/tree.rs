@@ -98,7 +98,7 @@ fn summary(f: &FieldShape) -> (String, String) {
         format!("{lo} … {hi}")
     } else if let Some(n) = stats.numbers.as_ref().filter(|n| n.moments.count() > 0) {
         format!("{} … {}", short(n.moments.min().unwrap_or(0.0)), short(n.moments.max().unwrap_or(0.0)))
-    } else if let Some(i) = stats.instants {
+    } else if let Some(i) = &stats.instants {
         format!("{} … {}", crate::time::rfc3339_from_unix(i.min), crate::time::rfc3339_from_unix(i.max))
     } else {
         String::new()

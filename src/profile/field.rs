@@ -25,13 +25,15 @@ pub struct FieldStats {
     pub list_lengths: Option<NumberStats>,
 }
 
-/// The range of instants and how many lie after the profile started.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// The range of instants, how many lie after the profile started, and
+/// their distribution (epoch seconds) for the calendar histogram.
+#[derive(Debug, Clone)]
 pub struct Instants {
     pub min: i64,
     pub max: i64,
     pub count: u64,
     pub future: u64,
+    pub seconds: NumberStats,
 }
 
 /// When this profile started, in epoch seconds (for "in the future").
@@ -63,11 +65,18 @@ impl FieldStats {
 
     pub fn add_instant(&mut self, secs: i64) {
         let future = (secs > profile_started()) as u64;
-        let i = self.instants.get_or_insert(Instants { min: secs, max: secs, count: 0, future: 0 });
+        let i = self.instants.get_or_insert_with(|| Instants {
+            min: secs,
+            max: secs,
+            count: 0,
+            future: 0,
+            seconds: NumberStats::new(),
+        });
         i.min = i.min.min(secs);
         i.max = i.max.max(secs);
         i.count += 1;
         i.future += future;
+        i.seconds.add(secs as f64);
     }
 
     pub fn add_number(&mut self, x: f64) {
@@ -92,14 +101,15 @@ impl FieldStats {
             (None, Some(theirs)) => self.list_lengths = Some(theirs.clone()),
             _ => {}
         }
-        match (&mut self.instants, other.instants) {
+        match (&mut self.instants, &other.instants) {
             (Some(mine), Some(theirs)) => {
                 mine.min = mine.min.min(theirs.min);
                 mine.max = mine.max.max(theirs.max);
                 mine.count += theirs.count;
                 mine.future += theirs.future;
+                mine.seconds.merge(&theirs.seconds);
             }
-            (None, Some(theirs)) => self.instants = Some(theirs),
+            (None, Some(theirs)) => self.instants = Some(theirs.clone()),
             _ => {}
         }
     }

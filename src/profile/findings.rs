@@ -98,7 +98,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             examples,
         });
     }
-    if let Some(instants) = stats.instants
+    if let Some(instants) = &stats.instants
         && instants.future > 0
     {
         out.push(Finding {

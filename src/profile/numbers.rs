@@ -86,6 +86,23 @@ impl NumberStats {
         self.neg_inf += other.neg_inf;
     }
 
+    /// True while every value is kept (statistics are exact).
+    pub fn is_exact(&self) -> bool {
+        self.exact.is_some()
+    }
+
+    /// Share of values strictly below `x` (from the sketch when not exact).
+    pub fn share_below(&self, x: f64) -> f64 {
+        let n = self.moments.count();
+        if n == 0 {
+            return 0.0;
+        }
+        match &self.exact {
+            Some(values) => values.iter().filter(|v| **v < x).count() as f64 / n as f64,
+            None => self.sketch.rank(x.next_down()),
+        }
+    }
+
     pub fn quantiles(&self) -> Option<QuantileSet> {
         if self.moments.count() == 0 {
             return None;

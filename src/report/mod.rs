@@ -137,6 +137,9 @@ pub struct StatsEntry {
     /// Share of instants after the profile started.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub future_share: Option<f64>,
+    /// Instants per calendar bucket: `{unit, buckets: [{label, count}], exact}`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub calendar: Option<crate::profile::calendar::CalendarHistogram>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub nan: Option<u64>,
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -280,9 +283,10 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, option
         list_lengths: stats.list_lengths.as_ref().and_then(lengths),
         empty: stats.text.as_ref().map(|t| t.empty),
         padded: stats.text.as_ref().map(|t| t.padded),
-        earliest: stats.instants.map(|i| crate::time::rfc3339_from_unix(i.min)),
-        latest: stats.instants.map(|i| crate::time::rfc3339_from_unix(i.max)),
-        future_share: stats.instants.map(|i| i.future as f64 / i.count.max(1) as f64),
+        earliest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.min)),
+        latest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.max)),
+        future_share: stats.instants.as_ref().map(|i| i.future as f64 / i.count.max(1) as f64),
+        calendar: stats.instants.as_ref().and_then(|i| crate::profile::calendar::histogram(&i.seconds)),
         nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
         infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }
