@@ -36,7 +36,10 @@ pub struct Instants {
     pub seconds: NumberStats,
 }
 
-/// When this profile started, in epoch seconds (for "in the future").
+/// When this process first profiled, in epoch seconds: the "now" that
+/// "in the future" is judged against (one instant for a whole profile, so
+/// its counts do not drift while it runs; the window's later profiles
+/// share it too).
 pub fn profile_started() -> i64 {
     static STARTED: std::sync::OnceLock<i64> = std::sync::OnceLock::new();
     *STARTED.get_or_init(crate::time::now_unix)
