@@ -85,3 +85,24 @@ fn the_demo_shows_every_finding_where_the_readme_says() {
     let variants = findings(scan.shape.find("tags[]").unwrap()).into_iter().find(|f| f.kind == "case_variants").unwrap();
     assert!(variants.examples.iter().any(|g| g.contains("fragile") && g.contains("FRAGILE")), "{:?}", variants.examples);
 }
+
+#[test]
+fn parquet_read_in_parallel_equals_the_same_rows_read_in_order_from_ipc() {
+    // The Parquet file has 3 row groups, profiled in parallel and merged;
+    // the IPC file holds the same rows and is read in order.
+    use plumbline::report::{ReportOptions, build};
+    let report = |name: &str| serde_json::to_value(build(&common::full(&sample(name)).unwrap(), ReportOptions::default())).unwrap();
+    let (parquet, ipc) = (report("deliveries.parquet"), report("deliveries.arrow"));
+    let fields = |r: &serde_json::Value| r["fields"].as_array().unwrap().clone();
+    let (pf, af) = (fields(&parquet), fields(&ipc));
+    assert_eq!(pf.len(), af.len());
+    for (p, a) in pf.iter().zip(&af) {
+        assert_eq!(p["path"], a["path"]);
+        for key in ["count", "nulls", "missing", "kinds", "distinct", "distinct_exact", "min", "max", "quantiles", "top", "findings", "calendar"] {
+            assert_eq!(p.get(key), a.get(key), "{}: {key}", p["path"]);
+        }
+        if let (Some(x), Some(y)) = (p["mean"].as_f64(), a["mean"].as_f64()) {
+            assert!((x - y).abs() <= 1e-12 * y.abs().max(1.0), "{}: mean {x} vs {y}", p["path"]);
+        }
+    }
+}

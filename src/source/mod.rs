@@ -90,8 +90,14 @@ pub trait Source: Send {
     /// The next batch, `Ok(None)` at the end. After an error the source is
     /// finished; what was yielded before it stands as a partial result.
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError>;
-    /// Bytes of input consumed so far, of the total.
+    /// Bytes (or rows) of input consumed so far, of the total.
     fn progress(&self) -> Progress;
+    /// Independent readers covering the source in order (e.g. one per
+    /// Parquet row group), so they can be read in parallel; `None` when the
+    /// source cannot be split or has started reading.
+    fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
+        None
+    }
 }
 
 /// Options for opening a source.

@@ -36,6 +36,8 @@ pub struct ParquetSource {
     file: File,
     metadata: ArrowReaderMetadata,
     next_group: usize,
+    /// One past the last row group this reader reads (all, unless split).
+    end_group: usize,
     current: Option<GroupReader>,
     rows_done: u64,
     failed: bool,
@@ -82,11 +84,22 @@ impl ParquetSource {
             parquet_leaves: Some(Arc::new(leaves)),
             facts,
         };
-        Ok(ParquetSource { info, file, metadata, next_group: 0, current: None, rows_done: 0, failed: false, encrypted_columns })
+        let end_group = parquet_meta.num_row_groups();
+        Ok(ParquetSource {
+            info,
+            file,
+            metadata,
+            next_group: 0,
+            end_group,
+            current: None,
+            rows_done: 0,
+            failed: false,
+            encrypted_columns,
+        })
     }
 
     fn num_groups(&self) -> usize {
-        self.metadata.metadata().num_row_groups()
+        self.end_group
     }
 
     fn fail(&mut self, group: usize, message: String) -> SourceError {
@@ -326,6 +339,31 @@ impl Source for ParquetSource {
 
     fn progress(&self) -> Progress {
         Progress { done: self.rows_done, total: self.info.rows.unwrap_or(0) }
+    }
+
+    /// One reader per row group, to be read in parallel.
+    fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
+        if self.next_group != 0 || self.current.is_some() || self.end_group < 2 {
+            return None;
+        }
+        let mut parts: Vec<Box<dyn Source>> = Vec::with_capacity(self.end_group);
+        for group in 0..self.end_group {
+            // A file of its own: a cloned handle would share the read offset
+            // with the other parts' threads.
+            let file = File::open(&self.info.path).ok()?;
+            parts.push(Box::new(ParquetSource {
+                info: self.info.clone(),
+                file,
+                metadata: self.metadata.clone(),
+                next_group: group,
+                end_group: group + 1,
+                current: None,
+                rows_done: 0,
+                failed: false,
+                encrypted_columns: self.encrypted_columns,
+            }));
+        }
+        Some(parts)
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
