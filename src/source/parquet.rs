@@ -1,5 +1,6 @@
 //! Parquet source: facts from the footer alone, batches one row group at a
-//! time through `parquet`'s Arrow reader (so errors name the row group).
+//! time through `parquet`'s Arrow reader (so errors name the row group);
+//! `split` gives one reader per row group so a scan can read them in parallel.
 
 use std::collections::{BTreeMap, BTreeSet, HashMap};
 use std::fs::File;
