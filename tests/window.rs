@@ -60,7 +60,7 @@ fn json_lines_show_missing_keys_apart_from_nulls() {
     let mut h = window(sample("deliveries.jsonl"));
     wait_for_read(&mut h);
     h.get_by_label_contains("JSON Lines");
-    h.get_by_label_contains("note   string · 1,279 null · 1,106 missing");
+    h.get_by_label_contains("note   string · 1,279 null · 1,106 missing · 3 distinct");
     h.get_by_label_contains("zip_code   mixed: int 3%, string 97%");
 }
 

@@ -26,7 +26,7 @@ impl FieldTree {
     }
 }
 
-/// `name  type  · 3 null · 1 missing`
+/// `name  type · 3 null · 1 missing · 12 distinct`
 pub fn row_text(field: &FieldShape) -> String {
     let name = match field.role {
         Role::Element => "[]".to_string(),
@@ -40,6 +40,10 @@ pub fn row_text(field: &FieldShape) -> String {
     }
     if field.missing > 0 {
         text.push_str(&format!(" · {} missing", group_digits(field.missing)));
+    }
+    if let Some(d) = field.stats.as_deref().and_then(|s| s.distinct_count()) {
+        let about = if d.exact { "" } else { "≈" };
+        text.push_str(&format!(" · {about}{} distinct", group_digits(d.value)));
     }
     text
 }
