@@ -45,10 +45,15 @@ pub fn days_from_civil(y: i64, m: u32, d: u32) -> i64 {
 /// Seconds since the epoch of an RFC 3339 timestamp with an offset
 /// (`2024-05-01T08:30:00.5+02:00`); `None` for anything else.
 pub fn parse_rfc3339(s: &str) -> Option<i64> {
-    let b = s.as_bytes();
     if crate::shape::strings::classify(s) != Some(crate::shape::strings::Form::Timestamp) {
         return None;
     }
+    rfc3339_seconds(s)
+}
+
+/// As [`parse_rfc3339`], for text already known to be in that form.
+pub fn rfc3339_seconds(s: &str) -> Option<i64> {
+    let b = s.as_bytes();
     let num = |r: std::ops::Range<usize>| s.get(r)?.parse::<i64>().ok();
     let days = days_from_civil(num(0..4)?, num(5..7)? as u32, num(8..10)? as u32);
     let secs = days * 86_400 + num(11..13)? * 3600 + num(14..16)? * 60 + num(17..19)?;

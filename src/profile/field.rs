@@ -4,6 +4,7 @@ use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
 use super::text::TextStats;
 use super::top::{Kept, TopValues};
+use crate::shape::strings::Form;
 use crate::value::truncate_chars;
 
 /// Characters kept of a top value as shown.
@@ -55,9 +56,12 @@ impl FieldStats {
         });
     }
 
-    pub fn add_text(&mut self, s: &str) {
+    /// A text value and the form the Shape recognised in it.
+    pub fn add_text(&mut self, s: &str, form: Option<Form>) {
         self.text.get_or_insert_with(TextStats::new).add(s);
-        if let Some(secs) = crate::time::parse_rfc3339(s) {
+        if form == Some(Form::Timestamp)
+            && let Some(secs) = crate::time::rfc3339_seconds(s)
+        {
             self.add_instant(secs);
         }
     }

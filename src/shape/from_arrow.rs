@@ -272,11 +272,13 @@ fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item
     let forms = &mut node.kinds.forms;
     match node.stats.as_deref_mut() {
         Some(stats) => values.for_each(|v| {
-            forms.observe(v);
+            let form = forms.observe(v);
             stats.add_scalar(hash::string(v), || Kept::Text(v.to_string()));
-            stats.add_text(v);
+            stats.add_text(v, form);
         }),
-        None => values.for_each(|v| forms.observe(v)),
+        None => values.for_each(|v| {
+            forms.observe(v);
+        }),
     }
     node.kinds.add(Kind::String, n);
 }

@@ -73,10 +73,10 @@ pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
         }
         Value::Str(s) => {
             node.kinds.add(Kind::String, 1);
-            node.kinds.forms.observe(s);
+            let form = node.kinds.forms.observe(s);
             if let Some(stats) = node.stats.as_deref_mut() {
                 stats.add_scalar(hash::string(s), || Kept::Text(s.clone()));
-                stats.add_text(s);
+                stats.add_text(s, form);
             }
             Kind::String
         }

@@ -138,10 +138,6 @@ impl FieldShape {
         self.child_mut(name, Role::Member)
     }
 
-    pub fn child(&self, name: &str, role: Role) -> Option<&FieldShape> {
-        self.index.get(&child_key(name, role)).map(|&i| &self.children[i])
-    }
-
     pub(crate) fn note_example(&mut self, kind: Kind, row: u64, render: impl FnOnce() -> String) {
         let list = self.examples.entry(kind).or_default();
         if list.len() < EXAMPLES_PER_KIND {
@@ -242,6 +238,7 @@ pub fn observed_label(kinds: &KindCounts) -> String {
                 None => "string".into(),
             }
         }
+        Unified::One(Kind::Float) if kinds.is_lossy() => "float (lossy: wide integers met floats)".into(),
         Unified::One(k) => k.name().into(),
         Unified::Mixed => {
             let total = kinds.non_null().max(1);
@@ -425,6 +422,11 @@ mod tests {
         let examples = a.minority_examples();
         assert_eq!(examples.len(), 1, "the minority kind only: {examples:?}");
         assert_eq!(examples[0].1.row, 2);
+        let mut wide = ShapeBuilder::empty(false);
+        let mixed_numbers = vec![row(&[("n", Value::Float(1.5))]), row(&[("n", Value::BigInt("99999999999999999999".into()))])];
+        wide.add(&Batch::Rows(mixed_numbers)).unwrap();
+        let n = wide.finish();
+        assert_eq!(observed_label(&n.find("n").unwrap().kinds), "float (lossy: wide integers met floats)");
         let c = shape.find("c[]").unwrap();
         assert_eq!((c.count, c.missing), (1, 0));
         assert_eq!(shape.find("b").unwrap().kinds.forms.date, 1);

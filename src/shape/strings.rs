@@ -29,8 +29,10 @@ pub enum Form {
 }
 
 impl StringForms {
-    pub fn observe(&mut self, s: &str) {
-        match classify(s) {
+    /// Counts the form of `s` and returns it, so callers need not classify again.
+    pub fn observe(&mut self, s: &str) -> Option<Form> {
+        let form = classify(s);
+        match form {
             Some(Form::Timestamp) => self.timestamp += 1,
             Some(Form::TimestampNoZone) => self.timestamp_no_zone += 1,
             Some(Form::Date) => self.date += 1,
@@ -39,6 +41,7 @@ impl StringForms {
             Some(Form::Decimal) => self.decimal += 1,
             None => {}
         }
+        form
     }
 
     pub fn merge(&mut self, other: &StringForms) {

@@ -198,11 +198,6 @@ impl CsvSource {
         };
         Ok(CsvSource { info, reader, columns, file_bytes_read: opened.file_bytes_read, record, finished: false, pending_error: None })
     }
-
-    /// The column names in file order.
-    pub fn columns(&self) -> &[String] {
-        &self.columns
-    }
 }
 
 fn delimiter_name(d: u8) -> String {
