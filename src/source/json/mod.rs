@@ -39,7 +39,6 @@ pub struct JsonSource {
     info: SourceInfo,
     framer: Framer,
     file_bytes_read: Arc<AtomicU64>,
-    buf: Vec<u8>,
     shared_path: Arc<PathBuf>,
     finished: bool,
     /// An error met after some rows of a batch: those rows go out first.
@@ -71,7 +70,7 @@ impl JsonSource {
             parquet_leaves: None,
             facts: Facts::default(),
         };
-        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, buf: Vec::new(), shared_path: Arc::new(path.to_path_buf()), finished: false, pending_error: None })
+        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, shared_path: Arc::new(path.to_path_buf()), finished: false, pending_error: None })
     }
 
     fn path(&self) -> PathBuf {
@@ -162,8 +161,8 @@ impl Source for JsonSource {
             return Ok(Some(Batch::Rows(vec![row])));
         }
         // Only cut the records here; the consumer parses them in parallel.
-        let mut text = std::mem::take(&mut self.buf);
-        text.clear();
+        // Each batch owns its text: the records hand it to their consumer.
+        let mut text = Vec::new();
         let mut records: Vec<(usize, usize, Start)> = Vec::new();
         while records.len() < TEXT_BATCH_ROWS && text.len() < BATCH_BYTES {
             let from = text.len();
@@ -186,7 +185,6 @@ impl Source for JsonSource {
             }
         }
         if records.is_empty() {
-            self.buf = text;
             return match self.pending_error.take() {
                 Some(e) => Err(e),
                 None => Ok(None),
