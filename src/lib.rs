@@ -10,6 +10,7 @@ pub mod gui;
 pub mod path;
 pub mod profile;
 pub mod report;
+pub mod sample;
 pub mod scan;
 pub mod shape;
 pub mod source;

@@ -285,3 +285,66 @@ fn gzip_csv_and_tsv_are_detected_and_typed() {
     assert!(o.status.success());
     assert!(stdout(&o).contains("TSV") && stdout(&o).contains("delimiter: tab"), "{}", stdout(&o));
 }
+
+#[test]
+fn a_sample_profiles_that_many_rows_and_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", &sample("deliveries.jsonl"), "--sample", "500", "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stdout(&o).contains("SAMPLE: a uniform sample of 500 of the 3,000 rows read (seed 1)"), "{}", stdout(&o));
+    let r = read_json(&report);
+    assert_eq!((r["sampled"].as_bool(), r["partial"].as_bool()), (Some(true), Some(false)));
+    assert_eq!((r["source"]["rows"].as_u64(), r["sample"]["rows"].as_u64()), (Some(500), Some(500)));
+    assert_eq!((r["sample"]["from_rows"].as_u64(), r["sample"]["seed"].as_u64()), (Some(3000), Some(1)));
+    let field = |r: &Value, p: &str| r["fields"].as_array().unwrap().iter().find(|f| f["path"] == p).unwrap().clone();
+    assert_eq!(field(&r, "delivery_id")["count"], 500);
+
+    // Examples name the row of the file: that line holds the value shown.
+    let lines: Vec<String> = std::fs::read_to_string(sample("deliveries.jsonl")).unwrap().lines().map(String::from).collect();
+    let examples = field(&r, "zip_code")["examples"].as_array().unwrap().clone();
+    assert!(!examples.is_empty(), "the sample still meets the minority kind");
+    for e in &examples {
+        let row: Value = serde_json::from_str(&lines[e["row"].as_u64().unwrap() as usize]).unwrap();
+        assert_eq!(row["zip_code"].to_string(), e["value"].as_str().unwrap(), "{e}");
+    }
+
+    // The same seed draws the same rows; another seed others.
+    let again = dir.path().join("again.json");
+    let other = dir.path().join("other.json");
+    assert!(plumbline(&["profile", &sample("deliveries.jsonl"), "--sample", "500", "--json", again.to_str().unwrap()]).status.success());
+    let args = ["profile", &sample("deliveries.jsonl"), "--sample", "500", "--seed", "2", "--json", other.to_str().unwrap()];
+    assert!(plumbline(&args).status.success());
+    let (again, other) = (read_json(&again), read_json(&other));
+    assert_eq!(r["fields"], again["fields"]);
+    assert_ne!(field(&r, "fee")["mean"], field(&other, "fee")["mean"]);
+    assert_eq!(other["sample"]["seed"], 2);
+}
+
+#[test]
+fn a_sample_larger_than_the_file_profiles_every_row() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", &sample("deliveries.parquet"), "--sample", "5000", "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(!stdout(&o).contains("SAMPLE:"));
+    let r = read_json(&report);
+    assert_eq!((r["sampled"].as_bool(), r["source"]["rows"].as_u64()), (Some(false), Some(3000)));
+    assert!(r.get("sample").is_none());
+}
+
+#[test]
+fn sample_options_out_of_range_are_refused() {
+    for args in [
+        vec!["--sample", "0"],
+        vec!["--sample", "20000000"],
+        vec!["--sample", "10", "--shape-only"],
+        vec!["--seed", "3"],
+    ] {
+        let mut all = vec!["profile", "sample-data/deliveries.jsonl"];
+        all.extend(&args);
+        let o = plumbline(&all);
+        assert_eq!(o.status.code(), Some(2), "{args:?}");
+        assert!(stderr(&o).starts_with("error:"), "{args:?}: {}", stderr(&o));
+    }
+}

@@ -9,6 +9,7 @@ mod common;
 use std::path::Path;
 
 use plumbline::shape::Kind;
+use plumbline::scan::{SampleOptions, ScanOptions};
 
 fn sample(name: &str) -> std::path::PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
@@ -86,23 +87,46 @@ fn the_demo_shows_every_finding_where_the_readme_says() {
     assert!(variants.examples.iter().any(|g| g.contains("fragile") && g.contains("FRAGILE")), "{:?}", variants.examples);
 }
 
+/// The statistics of two reports agree field by field.
+fn assert_same_statistics(left: &serde_json::Value, right: &serde_json::Value) {
+    let fields = |r: &serde_json::Value| r["fields"].as_array().unwrap().clone();
+    let (lf, rf) = (fields(left), fields(right));
+    assert_eq!(lf.len(), rf.len());
+    for (l, r) in lf.iter().zip(&rf) {
+        assert_eq!(l["path"], r["path"]);
+        for key in ["count", "nulls", "missing", "kinds", "distinct", "distinct_exact", "min", "max", "quantiles", "top", "findings", "calendar"] {
+            assert_eq!(l.get(key), r.get(key), "{}: {key}", l["path"]);
+        }
+        if let (Some(x), Some(y)) = (l["mean"].as_f64(), r["mean"].as_f64()) {
+            assert!((x - y).abs() <= 1e-12 * y.abs().max(1.0), "{}: mean {x} vs {y}", l["path"]);
+        }
+    }
+}
+
+fn report_of(name: &str, options: ScanOptions) -> serde_json::Value {
+    use plumbline::report::{ReportOptions, build};
+    let scan = common::scan_with_timeout(&sample(name), options, std::time::Duration::from_secs(120)).unwrap();
+    serde_json::to_value(build(&scan, ReportOptions::default())).unwrap()
+}
+
 #[test]
 fn parquet_read_in_parallel_equals_the_same_rows_read_in_order_from_ipc() {
     // The Parquet file has 3 row groups, profiled in parallel and merged;
     // the IPC file holds the same rows and is read in order.
-    use plumbline::report::{ReportOptions, build};
-    let report = |name: &str| serde_json::to_value(build(&common::full(&sample(name)).unwrap(), ReportOptions::default())).unwrap();
-    let (parquet, ipc) = (report("deliveries.parquet"), report("deliveries.arrow"));
-    let fields = |r: &serde_json::Value| r["fields"].as_array().unwrap().clone();
-    let (pf, af) = (fields(&parquet), fields(&ipc));
-    assert_eq!(pf.len(), af.len());
-    for (p, a) in pf.iter().zip(&af) {
-        assert_eq!(p["path"], a["path"]);
-        for key in ["count", "nulls", "missing", "kinds", "distinct", "distinct_exact", "min", "max", "quantiles", "top", "findings", "calendar"] {
-            assert_eq!(p.get(key), a.get(key), "{}: {key}", p["path"]);
-        }
-        if let (Some(x), Some(y)) = (p["mean"].as_f64(), a["mean"].as_f64()) {
-            assert!((x - y).abs() <= 1e-12 * y.abs().max(1.0), "{}: mean {x} vs {y}", p["path"]);
-        }
-    }
+    let options = ScanOptions::default();
+    assert_same_statistics(&report_of("deliveries.parquet", options), &report_of("deliveries.arrow", options));
+}
+
+#[test]
+fn a_seeded_sample_draws_the_same_rows_whatever_the_batches() {
+    // Parquet (row groups of 1,000) and IPC (other batch sizes) hold the
+    // same rows: the same seed must pick the same ones.
+    let options = ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 3 }), ..Default::default() };
+    let parquet = report_of("deliveries.parquet", options);
+    assert_eq!((parquet["sampled"].as_bool(), parquet["source"]["rows"].as_u64()), (Some(true), Some(700)));
+    assert_eq!(parquet["sample"]["from_rows"], 3000);
+    assert_same_statistics(&parquet, &report_of("deliveries.arrow", options));
+    let other_seed = ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 4 }), ..Default::default() };
+    let fee = |r: &serde_json::Value| r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "fee").unwrap()["mean"].clone();
+    assert_ne!(fee(&parquet), fee(&report_of("deliveries.parquet", other_seed)));
 }

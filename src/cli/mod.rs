@@ -10,7 +10,7 @@ use std::sync::atomic::AtomicBool;
 use clap::{Parser, Subcommand};
 
 use crate::report::{self, ReportOptions};
-use crate::scan::{self, ScanOptions};
+use crate::scan::{self, SampleOptions, ScanOptions};
 use crate::source::{FormatChoice, OpenOptions};
 
 #[derive(Debug, Parser)]
@@ -49,6 +49,13 @@ pub struct ProfileArgs {
     /// Leave data values (examples) out of the report and the output.
     #[arg(long)]
     pub no_examples: bool,
+    /// Profile a uniform sample of N rows (every row is read; only the
+    /// sample is profiled). Rows outside the sample are not checked.
+    #[arg(long, value_name = "N", conflicts_with = "shape_only", value_parser = clap::value_parser!(u64).range(1..=crate::sample::MAX_ROWS as u64))]
+    pub sample: Option<u64>,
+    /// Seed of the sample, so a rerun draws the same rows.
+    #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
+    pub seed: u64,
 }
 
 pub fn main() -> ExitCode {
@@ -69,7 +76,8 @@ fn fail(message: &dyn std::fmt::Display) -> ExitCode {
 
 fn run_profile(args: &ProfileArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
-    let options = ScanOptions { shape_only: args.shape_only };
+    let sample = args.sample.map(|rows| SampleOptions { rows: rows.min(usize::MAX as u64) as usize, seed: args.seed });
+    let options = ScanOptions { shape_only: args.shape_only, sample };
     let stop = AtomicBool::new(false);
     // Drawn only when stderr is a terminal (indicatif checks).
     let bar = indicatif::ProgressBar::with_draw_target(None, indicatif::ProgressDrawTarget::stderr());

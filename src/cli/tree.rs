@@ -60,6 +60,9 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
         let label = if scan.coverage.is_partial() { "PARTIAL" } else { "NOTE" };
         let _ = writeln!(out, "  {label}: {note}");
     }
+    if let Some(sample) = &scan.sample {
+        let _ = writeln!(out, "  SAMPLE: {}", sample.describe(scan.shape.rows));
+    }
     out.push('\n');
 
     let mut rows: Vec<[String; 7]> =

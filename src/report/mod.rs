@@ -31,11 +31,23 @@ pub struct Report {
     #[serde(skip_serializing_if = "Option::is_none")]
     pub coverage_note: Option<String>,
     pub shape_only: bool,
-    /// True when rows were sampled rather than all read (not yet offered).
+    /// True when the fields describe a uniform sample of the rows read.
     pub sampled: bool,
+    /// How the sample was drawn; absent when every row was profiled.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sample: Option<SampleSection>,
     pub examples_included: bool,
     pub source: SourceSection,
     pub fields: Vec<FieldEntry>,
+}
+
+#[derive(Debug, Serialize)]
+pub struct SampleSection {
+    /// Rows in the sample (also `source.rows`).
+    pub rows: u64,
+    /// Rows read, from which the sample was drawn.
+    pub from_rows: u64,
+    pub seed: u64,
 }
 
 #[derive(Debug, Serialize)]
@@ -189,7 +201,8 @@ pub fn build(scan: &Scan, options: ReportOptions) -> Report {
         partial: scan.coverage.is_partial(),
         coverage_note: scan.coverage.describe(),
         shape_only: matches!(scan.coverage, crate::scan::Coverage::SchemaOnly | crate::scan::Coverage::FirstRows(_)),
-        sampled: false,
+        sampled: scan.sample.is_some(),
+        sample: scan.sample.map(|s| SampleSection { rows: scan.shape.rows, from_rows: s.from_rows, seed: s.seed }),
         examples_included: !options.no_examples,
         source: SourceSection {
             path: info.path.display().to_string(),

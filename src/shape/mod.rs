@@ -365,6 +365,20 @@ impl ShapeBuilder {
         self.rows += later.rows;
     }
 
+    /// Replaces each example's row number `i` with `rows[i]` (for a sample,
+    /// whose row `i` is row `rows[i]` of the source).
+    pub fn renumber_examples(&mut self, rows: &[u64]) {
+        self.root.walk_mut(&mut |f| {
+            for list in f.examples.values_mut() {
+                for e in list {
+                    if let Some(&row) = rows.get(e.row as usize) {
+                        e.row = row;
+                    }
+                }
+            }
+        });
+    }
+
     pub fn finish(mut self) -> Shape {
         self.root.finish(self.rows);
         Shape { rows: self.rows, fields: self.root.children }

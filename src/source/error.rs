@@ -74,6 +74,9 @@ pub enum SourceError {
     },
     #[error("{}: {message}", path.display())]
     Directory { path: PathBuf, message: String },
+    /// A failure of Plumbline itself (an Arrow operation on valid data).
+    #[error("{}: internal error: {message}", path.display())]
+    Internal { path: PathBuf, message: String },
 }
 
 impl SourceError {
@@ -95,7 +98,8 @@ impl SourceError {
             | SourceError::Encrypted { path }
             | SourceError::Empty { path }
             | SourceError::Limit { path, .. }
-            | SourceError::Directory { path, .. } => path,
+            | SourceError::Directory { path, .. }
+            | SourceError::Internal { path, .. } => path,
         }
     }
 }

@@ -61,7 +61,7 @@ fn time_runs(runs: usize, mut f: impl FnMut()) -> Duration {
 
 fn shape(path: &Path, shape_only: bool) -> u64 {
     let stop = AtomicBool::new(false);
-    let scan = scan::scan_path(path, OpenOptions::default(), ScanOptions { shape_only }, &stop, &mut |_| {}).unwrap();
+    let scan = scan::scan_path(path, OpenOptions::default(), ScanOptions { shape_only, ..Default::default() }, &stop, &mut |_| {}).unwrap();
     assert!(!scan.coverage.is_partial(), "{:?}", scan.coverage);
     scan.shape.rows
 }

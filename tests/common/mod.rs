@@ -67,7 +67,7 @@ pub fn full(path: &Path) -> Result<Scan, SourceError> {
 }
 
 pub fn shape_only(path: &Path) -> Result<Scan, SourceError> {
-    scan_with_timeout(path, ScanOptions { shape_only: true }, Duration::from_secs(30))
+    scan_with_timeout(path, ScanOptions { shape_only: true, ..Default::default() }, Duration::from_secs(30))
 }
 
 /// Runs a reference script under `tests/reference/` with `args`. When Python

@@ -5,6 +5,9 @@
 use std::path::Path;
 use std::sync::atomic::{AtomicBool, Ordering};
 
+mod parts;
+mod sample;
+
 use crate::shape::{Shape, ShapeBuilder};
 use crate::source::{self, OpenOptions, Progress, Source, SourceError, SourceInfo};
 
@@ -16,6 +19,34 @@ pub struct ScanOptions {
     /// Read only the schema and metadata; for JSON and CSV (which declare no
     /// schema) infer from the first [`SHAPE_ONLY_ROWS`] rows.
     pub shape_only: bool,
+    /// Profile a uniform sample of this many rows instead of every row.
+    pub sample: Option<SampleOptions>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct SampleOptions {
+    pub rows: usize,
+    pub seed: u64,
+}
+
+/// How a sampled Shape was drawn.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Sampled {
+    /// Rows the sample was drawn from (every row read).
+    pub from_rows: u64,
+    pub seed: u64,
+}
+
+impl Sampled {
+    /// A sentence for people about a sample of `rows` rows.
+    pub fn describe(&self, rows: u64) -> String {
+        format!(
+            "a uniform sample of {} of the {} rows read (seed {}); statistics describe the sample",
+            crate::format::group_digits(rows),
+            crate::format::group_digits(self.from_rows),
+            self.seed
+        )
+    }
 }
 
 /// How much of the source the Shape covers.
@@ -55,6 +86,8 @@ pub struct Scan {
     pub info: SourceInfo,
     pub shape: Shape,
     pub coverage: Coverage,
+    /// Set when the Shape describes a sample smaller than the rows read.
+    pub sample: Option<Sampled>,
 }
 
 /// Opens `path` and reads its Shape. Errors opening the source are returned;
@@ -80,12 +113,17 @@ pub fn scan_source(
     let mut builder = ShapeBuilder::new(&info, !options.shape_only);
     let has_schema = info.schema.is_some();
     if options.shape_only && has_schema {
-        return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly };
+        return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly, sample: None };
+    }
+    if !options.shape_only
+        && let Some(sample) = options.sample
+    {
+        return sample::scan_sample(source, info, sample, stop, progress);
     }
     if !options.shape_only
         && let Some(parts) = source.split()
     {
-        return scan_parts(info, parts, stop, progress);
+        return parts::scan_parts(info, parts, stop, progress);
     }
     let row_limit = options.shape_only.then_some(SHAPE_ONLY_ROWS);
     let mut next = source.next_batch();
@@ -117,60 +155,7 @@ pub fn scan_source(
         }
         next = following;
     };
-    Scan { info, shape: builder.finish(), coverage }
-}
-
-/// Reads independent parts (row groups) a few at a time in parallel, each
-/// into its own builder, merging each window into the result in order so
-/// memory holds only a window's builders. A part that breaks or is stopped
-/// ends the scan there, keeping everything before it.
-fn scan_parts(info: SourceInfo, parts: Vec<Box<dyn Source>>, stop: &AtomicBool, progress: &mut dyn FnMut(Progress)) -> Scan {
-    use rayon::prelude::*;
-
-    let window = 2 * rayon::current_num_threads().max(1);
-    let total = info.rows.unwrap_or(0);
-    let mut merged = ShapeBuilder::new(&info, true);
-    let mut parts = parts.into_iter();
-    let mut coverage = Coverage::Full;
-    'windows: loop {
-        let batch: Vec<Box<dyn Source>> = parts.by_ref().take(window).collect();
-        if batch.is_empty() {
-            break;
-        }
-        let results: Vec<(ShapeBuilder, Option<String>, bool)> = batch
-            .into_par_iter()
-            .map(|mut part| {
-                let mut builder = ShapeBuilder::new(&info, true);
-                loop {
-                    if stop.load(Ordering::Relaxed) {
-                        return (builder, None, true);
-                    }
-                    match part.next_batch() {
-                        Ok(Some(b)) => {
-                            if let Err(e) = builder.add(&b) {
-                                return (builder, Some(e.to_string()), false);
-                            }
-                        }
-                        Ok(None) => return (builder, None, false),
-                        Err(e) => return (builder, Some(e.to_string()), false),
-                    }
-                }
-            })
-            .collect();
-        for (builder, error, stopped) in results {
-            merged.merge_after(builder);
-            if let Some(error) = error {
-                coverage = Coverage::Broken { rows: merged.rows(), error };
-                break 'windows;
-            }
-            if stopped {
-                coverage = Coverage::Stopped(merged.rows());
-                break 'windows;
-            }
-        }
-        progress(Progress { done: merged.rows(), total });
-    }
-    Scan { info, shape: merged.finish(), coverage }
+    Scan { info, shape: builder.finish(), coverage, sample: None }
 }
 
 fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {

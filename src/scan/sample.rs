@@ -1,0 +1,53 @@
+//! Profiling a uniform sample of the rows: every row is read and offered
+//! to a reservoir; only the rows it keeps are observed.
+
+use std::sync::atomic::{AtomicBool, Ordering};
+
+use super::{Coverage, SampleOptions, Sampled, Scan};
+use crate::sample::kept::KeptRows;
+use crate::shape::ShapeBuilder;
+use crate::source::{Progress, Source, SourceInfo};
+
+pub(super) fn scan_sample(
+    source: &mut dyn Source,
+    info: SourceInfo,
+    options: SampleOptions,
+    stop: &AtomicBool,
+    progress: &mut dyn FnMut(Progress),
+) -> Scan {
+    let mut kept = KeptRows::new(options.rows, options.seed, info.path.clone());
+    let mut coverage = loop {
+        if stop.load(Ordering::Relaxed) {
+            break Coverage::Stopped(kept.seen());
+        }
+        match source.next_batch() {
+            Ok(Some(batch)) => {
+                if let Err(e) = kept.offer(&batch) {
+                    break Coverage::Broken { rows: kept.seen(), error: e.to_string() };
+                }
+            }
+            Ok(None) => break Coverage::Full,
+            Err(e) => break Coverage::Broken { rows: kept.seen(), error: e.to_string() },
+        }
+        progress(source.progress());
+    };
+    let from_rows = kept.seen();
+    let mut builder = ShapeBuilder::new(&info, true);
+    let mut stream_rows = Vec::new();
+    match kept.finish() {
+        Ok(batches) => {
+            for b in batches {
+                if let Err(e) = builder.add(&b.batch) {
+                    coverage = Coverage::Broken { rows: from_rows, error: e.to_string() };
+                    break;
+                }
+                stream_rows.extend(b.rows);
+            }
+        }
+        Err(e) => coverage = Coverage::Broken { rows: from_rows, error: e.to_string() },
+    }
+    // Examples name the row of the file, not of the sample.
+    builder.renumber_examples(&stream_rows);
+    let sample = (from_rows > builder.rows()).then_some(Sampled { from_rows, seed: options.seed });
+    Scan { info, shape: builder.finish(), coverage, sample }
+}
