@@ -86,6 +86,14 @@ impl Distinct {
         Distinct { state: State::Exact(HashSet::with_hasher(Build::default())), budget }
     }
 
+    /// Changes the budget; a set already larger becomes a sketch now.
+    pub fn set_budget(&mut self, budget: usize) {
+        self.budget = budget;
+        if matches!(&self.state, State::Exact(set) if set.len() > budget) {
+            self.to_sketch();
+        }
+    }
+
     /// Adds a value by its 64-bit hash (see [`hash_bytes`]).
     pub fn add_hash(&mut self, hash: u64) {
         match &mut self.state {

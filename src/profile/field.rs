@@ -1,5 +1,6 @@
 //! The statistics kept for one field, fed as the Shape observes its values.
 
+use super::budget::Budget;
 use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
 use super::text::TextStats;
@@ -24,6 +25,8 @@ pub struct FieldStats {
     pub instants: Option<Instants>,
     /// Lists and maps: how many elements each holds.
     pub list_lengths: Option<NumberStats>,
+    /// How large the exact structures above may grow.
+    budget: Budget,
 }
 
 /// The range of instants, how many lie after the profile started, and
@@ -47,6 +50,33 @@ pub fn profile_started() -> i64 {
 }
 
 impl FieldStats {
+    pub fn with_budget(budget: Budget) -> Self {
+        let mut stats = FieldStats::default();
+        stats.set_budget(budget);
+        stats
+    }
+
+    pub fn budget(&self) -> Budget {
+        self.budget
+    }
+
+    /// Applies a new budget to everything kept; exact structures already
+    /// beyond it give way to their sketches now.
+    pub fn set_budget(&mut self, budget: Budget) {
+        self.budget = budget;
+        self.distinct.set_budget(budget.distinct);
+        self.top.set_limits(budget.top, budget.counters);
+        for numbers in [&mut self.numbers, &mut self.list_lengths].into_iter().flatten() {
+            numbers.set_limit(budget.sample);
+        }
+        if let Some(text) = &mut self.text {
+            text.lengths.set_limit(budget.sample);
+        }
+        if let Some(instants) = &mut self.instants {
+            instants.seconds.set_limit(budget.sample);
+        }
+    }
+
     /// A scalar value: its hash for distinct and top counts, and the value.
     pub fn add_scalar(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.distinct.add_hash(hash);
@@ -58,7 +88,8 @@ impl FieldStats {
 
     /// A text value and the form the Shape recognised in it.
     pub fn add_text(&mut self, s: &str, form: Option<Form>) {
-        self.text.get_or_insert_with(TextStats::new).add(s);
+        let limit = self.budget.sample;
+        self.text.get_or_insert_with(|| TextStats::with_limit(limit)).add(s);
         if form == Some(Form::Timestamp)
             && let Some(secs) = crate::time::rfc3339_seconds(s)
         {
@@ -67,17 +98,19 @@ impl FieldStats {
     }
 
     pub fn add_list_length(&mut self, n: usize) {
-        self.list_lengths.get_or_insert_with(NumberStats::new).add(n as f64);
+        let limit = self.budget.sample;
+        self.list_lengths.get_or_insert_with(|| NumberStats::with_limit(limit)).add(n as f64);
     }
 
     pub fn add_instant(&mut self, secs: i64) {
         let future = (secs > profile_started()) as u64;
+        let limit = self.budget.sample;
         let i = self.instants.get_or_insert_with(|| Instants {
             min: secs,
             max: secs,
             count: 0,
             future: 0,
-            seconds: NumberStats::new(),
+            seconds: NumberStats::with_limit(limit),
         });
         i.min = i.min.min(secs);
         i.max = i.max.max(secs);
@@ -87,7 +120,8 @@ impl FieldStats {
     }
 
     pub fn add_number(&mut self, x: f64) {
-        self.numbers.get_or_insert_with(NumberStats::new).add(x);
+        let limit = self.budget.sample;
+        self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).add(x);
     }
 
     pub fn merge(&mut self, other: &FieldStats) {
@@ -119,6 +153,8 @@ impl FieldStats {
             (None, Some(theirs)) => self.instants = Some(theirs.clone()),
             _ => {}
         }
+        // What came from `other` may have been kept under another budget.
+        self.set_budget(self.budget);
     }
 
     pub fn distinct_count(&self) -> Option<DistinctCount> {

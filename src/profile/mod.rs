@@ -4,6 +4,7 @@
 //! The Shape's nodes carry a [`field::FieldStats`] when a scan profiles (not
 //! for `--shape-only`); the observers in `shape/` feed it.
 
+pub mod budget;
 pub mod calendar;
 pub mod distinct;
 pub mod field;

@@ -17,8 +17,9 @@ pub const EXACT_SAMPLE: usize = 10_000;
 pub struct NumberStats {
     pub moments: Moments,
     sketch: Kll,
-    /// Every finite value while there are at most EXACT_SAMPLE of them.
+    /// Every finite value while there are at most `exact_limit` of them.
     exact: Option<Vec<f64>>,
+    exact_limit: usize,
     pub nan: u64,
     pub pos_inf: u64,
     pub neg_inf: u64,
@@ -46,7 +47,20 @@ pub struct Histogram {
 
 impl NumberStats {
     pub fn new() -> Self {
-        NumberStats { exact: Some(Vec::new()), ..Default::default() }
+        NumberStats::with_limit(EXACT_SAMPLE)
+    }
+
+    /// Exact while at most `limit` values have been seen.
+    pub fn with_limit(limit: usize) -> Self {
+        NumberStats { exact: Some(Vec::new()), exact_limit: limit, ..Default::default() }
+    }
+
+    /// Lowers (or raises) the limit; values beyond it go to the sketch only.
+    pub fn set_limit(&mut self, limit: usize) {
+        self.exact_limit = limit;
+        if self.exact.as_ref().is_some_and(|v| v.len() > limit) {
+            self.exact = None;
+        }
     }
 
     pub fn add(&mut self, x: f64) {
@@ -62,7 +76,7 @@ impl NumberStats {
         self.sketch.add(x);
         self.fractional |= x.fract() != 0.0;
         if let Some(values) = &mut self.exact {
-            if values.len() < EXACT_SAMPLE {
+            if values.len() < self.exact_limit {
                 values.push(x);
             } else {
                 self.exact = None;
@@ -74,7 +88,7 @@ impl NumberStats {
         self.moments.merge(&other.moments);
         self.sketch.merge(&other.sketch);
         self.exact = match (self.exact.take(), &other.exact) {
-            (Some(mut mine), Some(theirs)) if mine.len() + theirs.len() <= EXACT_SAMPLE => {
+            (Some(mut mine), Some(theirs)) if mine.len() + theirs.len() <= self.exact_limit => {
                 mine.extend_from_slice(theirs);
                 Some(mine)
             }

@@ -13,7 +13,12 @@ pub struct TextStats {
 
 impl TextStats {
     pub fn new() -> Self {
-        TextStats { lengths: NumberStats::new(), empty: 0, padded: 0 }
+        TextStats::with_limit(super::numbers::EXACT_SAMPLE)
+    }
+
+    /// Lengths exact while at most `limit` strings have been seen.
+    pub fn with_limit(limit: usize) -> Self {
+        TextStats { lengths: NumberStats::with_limit(limit), empty: 0, padded: 0 }
     }
 
     pub fn add(&mut self, s: &str) {

@@ -35,13 +35,22 @@ impl Kept {
     }
 }
 
-#[derive(Debug, Clone, Default)]
+#[derive(Debug, Clone)]
 pub struct TopValues {
     /// By value hash: count and the value.
     counts: HashMap<u64, (u64, Kept), Build>,
     /// Total added (for the error bound once summarised).
     total: u64,
     summarised: bool,
+    /// Values counted exactly before summarising, and the counters kept then.
+    exact_limit: usize,
+    counters: usize,
+}
+
+impl Default for TopValues {
+    fn default() -> Self {
+        TopValues::with_limits(EXACT_VALUES, COUNTERS)
+    }
 }
 
 /// One top value.
@@ -52,6 +61,22 @@ pub struct TopValue {
 }
 
 impl TopValues {
+    pub fn with_limits(exact_limit: usize, counters: usize) -> Self {
+        TopValues { counts: HashMap::default(), total: 0, summarised: false, exact_limit, counters: counters.min(exact_limit) }
+    }
+
+    /// Changes the limits; a field already past the new exact limit is summarised now.
+    pub fn set_limits(&mut self, exact_limit: usize, counters: usize) {
+        self.exact_limit = exact_limit;
+        self.counters = counters.min(exact_limit);
+        if !self.summarised && self.counts.len() > exact_limit {
+            self.summarised = true;
+        }
+        if self.summarised {
+            self.shrink();
+        }
+    }
+
     /// Adds a value by its hash; `keep` gives the value the first time it is seen.
     pub fn add(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.total += 1;
@@ -60,10 +85,10 @@ impl TopValues {
             return;
         }
         self.counts.insert(hash, (1, keep()));
-        if !self.summarised && self.counts.len() > EXACT_VALUES {
+        if !self.summarised && self.counts.len() > self.exact_limit {
             self.summarised = true;
             self.shrink();
-        } else if self.summarised && self.counts.len() > 2 * COUNTERS {
+        } else if self.summarised && self.counts.len() > 2 * self.counters {
             // Shrinking back to k once 2k counters accumulate keeps the cost
             // per value constant; it is a merge with a summary of the newcomers,
             // so the n / (k + 1) bound holds.
@@ -74,12 +99,12 @@ impl TopValues {
     /// Misra–Gries step: subtract the (k+1)-th largest count from all, drop
     /// those at or below zero, leaving at most k counters.
     fn shrink(&mut self) {
-        if self.counts.len() <= COUNTERS {
+        if self.counts.len() <= self.counters {
             return;
         }
         let mut counts: Vec<u64> = self.counts.values().map(|(c, _)| *c).collect();
         counts.sort_unstable_by(|a, b| b.cmp(a));
-        let cut = counts[COUNTERS];
+        let cut = counts[self.counters];
         self.counts.retain(|_, (c, _)| *c > cut);
         self.counts.values_mut().for_each(|(c, _)| *c -= cut);
     }
@@ -90,7 +115,7 @@ impl TopValues {
             self.counts.entry(*hash).or_insert_with(|| (0, shown.clone())).0 += count;
         }
         self.summarised |= other.summarised;
-        if !self.summarised && self.counts.len() > EXACT_VALUES {
+        if !self.summarised && self.counts.len() > self.exact_limit {
             self.summarised = true;
         }
         if self.summarised {
@@ -118,7 +143,7 @@ impl TopValues {
     }
 
     pub fn max_undercount(&self) -> u64 {
-        if self.summarised { self.total / (COUNTERS as u64 + 1) } else { 0 }
+        if self.summarised { self.total / (self.counters as u64 + 1) } else { 0 }
     }
 
     pub fn total(&self) -> u64 {
@@ -174,4 +199,21 @@ mod tests {
             }
         }
     }
+
+    #[test]
+    fn smaller_limits_summarise_sooner_and_widen_the_bound() {
+        let mut t = TopValues::with_limits(100, 100);
+        for v in 0..150 {
+            add(&mut t, v % 120);
+        }
+        assert!(!t.is_exact());
+        assert_eq!(t.max_undercount(), 150 / 101);
+        let mut late = TopValues::default();
+        (0..500).for_each(|v| add(&mut late, v));
+        assert!(late.is_exact());
+        late.set_limits(100, 100);
+        assert!(!late.is_exact(), "past the new limit: summarised at once");
+        assert!(late.entries().count() <= 100);
+    }
+
 }

@@ -21,6 +21,7 @@ use serde::Serialize;
 pub use declared::Declared;
 pub use kinds::{Kind, KindCounts, Unified};
 
+use crate::profile::budget::Budget;
 use crate::profile::field::FieldStats;
 use crate::source::json::RawRecords;
 use crate::source::{Batch, SourceError, SourceInfo};
@@ -121,7 +122,7 @@ impl FieldShape {
         self.index.insert(index_key, self.children.len());
         let mut child = FieldShape::new(name, path, role);
         child.key = key.to_string();
-        child.stats = self.stats.as_ref().map(|_| Box::default());
+        child.stats = self.stats.as_ref().map(|s| Box::new(FieldStats::with_budget(s.budget())));
         self.children.push(child);
         self.children.last_mut().expect("just pushed")
     }
@@ -302,7 +303,26 @@ impl ShapeBuilder {
         if let Some(schema) = &info.schema {
             declared::seed_from_schema(&mut root, schema, info.parquet_leaves.as_deref());
         }
-        ShapeBuilder { root, rows: 0 }
+        let mut builder = ShapeBuilder { root, rows: 0 };
+        builder.enforce_budget();
+        builder
+    }
+
+    /// Gives every field its share of the memory budget for the fields known
+    /// so far (a source's fields are known up front when it declares a
+    /// schema; JSON fields appear as rows are read).
+    fn enforce_budget(&mut self) {
+        if self.root.stats.is_none() {
+            return;
+        }
+        let mut fields = 0usize;
+        self.root.walk_mut(&mut |_| fields += 1);
+        let budget = Budget::for_fields(fields.saturating_sub(1));
+        self.root.walk_mut(&mut |f| {
+            if let Some(stats) = &mut f.stats {
+                stats.set_budget(budget);
+            }
+        });
     }
 
     /// An empty builder for a chunk; merge it into the main one afterwards.
@@ -329,6 +349,7 @@ impl ShapeBuilder {
             Batch::Json(records) => return self.add_json(records),
         }
         self.count_rows(batch.num_rows() as u64);
+        self.enforce_budget();
         Ok(())
     }
 
@@ -363,6 +384,7 @@ impl ShapeBuilder {
         });
         self.root.merge(&later.root);
         self.rows += later.rows;
+        self.enforce_budget();
     }
 
     /// Replaces each example's row number `i` with `rows[i]` (for a sample,
@@ -445,4 +467,31 @@ mod tests {
         assert_eq!((c.count, c.missing), (1, 0));
         assert_eq!(shape.find("b").unwrap().kinds.forms.date, 1);
     }
+
+    /// A batch of `columns` int64 columns, each holding 0..rows.
+    fn wide_batch(columns: usize, rows: i64) -> Batch {
+        use std::sync::Arc;
+        let fields: Vec<arrow_schema::Field> =
+            (0..columns).map(|i| arrow_schema::Field::new(format!("c{i}"), arrow_schema::DataType::Int64, false)).collect();
+        let arrays: Vec<arrow_array::ArrayRef> =
+            (0..columns).map(|_| Arc::new(arrow_array::Int64Array::from_iter_values(0..rows)) as _).collect();
+        Batch::Arrow(arrow_array::RecordBatch::try_new(Arc::new(arrow_schema::Schema::new(fields)), arrays).unwrap())
+    }
+
+    #[test]
+    fn wide_sources_give_each_field_a_smaller_exact_budget() {
+        let distinct = |columns| {
+            let mut b = ShapeBuilder::empty(true);
+            b.add(&wide_batch(columns, 5_000)).unwrap();
+            let shape = b.finish();
+            let stats = shape.find("c0").unwrap().stats.as_ref().unwrap().distinct_count().unwrap();
+            let quantiles_exact = shape.find("c0").unwrap().stats.as_ref().unwrap().numbers.as_ref().unwrap().is_exact();
+            (stats.exact, quantiles_exact)
+        };
+        // 10 columns: the full budget (100,000 distinct, 10,000 values).
+        assert_eq!(distinct(10), (true, true));
+        // 600 columns: 2,000,000 / 600 = 3,333 distinct and values each, below 5,000.
+        assert_eq!(distinct(600), (false, false));
+    }
+
 }
