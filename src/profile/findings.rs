@@ -182,6 +182,7 @@ fn far_outliers(stats: &crate::profile::field::FieldStats, out: &mut Vec<Finding
     }
     let iqr = q3 - q1;
     let (lo, hi) = (q1 - TUKEY_K * iqr, q3 + TUKEY_K * iqr);
+    let exact = numbers.quantiles().is_some_and(|q| q.exact);
     let examples = [numbers.moments.min(), numbers.moments.max()]
         .into_iter()
         .flatten()
@@ -191,9 +192,10 @@ fn far_outliers(stats: &crate::profile::field::FieldStats, out: &mut Vec<Finding
     out.push(Finding {
         kind: "far_outliers",
         message: format!(
-            "{} values lie outside Tukey's far fences [{lo}, {hi}] (quartiles ∓ 3 × IQR){}",
+            "{}{} values lie outside Tukey's far fences [{lo}, {hi}] (quartiles ∓ 3 × IQR){}",
+            if exact { "" } else { "about " },
             below + above,
-            if numbers.quantiles().is_some_and(|q| q.exact) { "" } else { ", counted from the sketch" }
+            if exact { "" } else { ", counted from the sketch (at least one, shown)" }
         ),
         examples,
     });

@@ -7,6 +7,7 @@
 pub mod budget;
 pub mod calendar;
 pub mod distinct;
+pub mod few;
 pub mod field;
 pub mod findings;
 pub mod hash;

@@ -5,6 +5,7 @@
 
 use serde::Serialize;
 
+use super::few::{FEW_VALUES, FewValues};
 use super::histogram;
 use super::kll::{self, Kll};
 use super::moments::Moments;
@@ -20,6 +21,9 @@ pub struct NumberStats {
     /// Every finite value while there are at most `exact_limit` of them.
     exact: Option<Vec<f64>>,
     exact_limit: usize,
+    /// Counts by value while there are few distinct values; the sketch is
+    /// fed only once they are too many.
+    few: Option<FewValues>,
     pub nan: u64,
     pub pos_inf: u64,
     pub neg_inf: u64,
@@ -52,7 +56,7 @@ impl NumberStats {
 
     /// Exact while at most `limit` values have been seen.
     pub fn with_limit(limit: usize) -> Self {
-        NumberStats { exact: Some(Vec::new()), exact_limit: limit, ..Default::default() }
+        NumberStats { exact: Some(Vec::new()), exact_limit: limit, few: Some(FewValues::default()), ..Default::default() }
     }
 
     /// Lowers (or raises) the limit; values beyond it go to the sketch only.
@@ -60,6 +64,22 @@ impl NumberStats {
         self.exact_limit = limit;
         if self.exact.as_ref().is_some_and(|v| v.len() > limit) {
             self.exact = None;
+        }
+        if self.few.as_ref().is_some_and(|f| f.distinct() > self.few_limit()) {
+            self.spill_few();
+        }
+    }
+
+    /// Distinct values counted by value (fewer in wide sources).
+    fn few_limit(&self) -> usize {
+        FEW_VALUES.min(self.exact_limit)
+    }
+
+    /// Moves the counts by value into the sketch, for good.
+    fn spill_few(&mut self) {
+        if let Some(few) = self.few.take() {
+            few.pairs().for_each(|(v, c)| self.sketch.add_weighted(v, c));
+            self.sketch.settle();
         }
     }
 
@@ -73,8 +93,17 @@ impl NumberStats {
             return;
         }
         self.moments.add(x);
-        self.sketch.add(x);
-        self.fractional |= x.fract() != 0.0;
+        let few_limit = self.few_limit();
+        match &mut self.few {
+            Some(few) => {
+                if !few.add(x, few_limit) {
+                    self.spill_few();
+                }
+            }
+            None => self.sketch.add(x),
+        }
+        // Once a fraction is seen no value can undo it; skip the test then.
+        self.fractional = self.fractional || x.fract() != 0.0;
         if let Some(values) = &mut self.exact {
             if values.len() < self.exact_limit {
                 values.push(x);
@@ -87,6 +116,20 @@ impl NumberStats {
     pub fn merge(&mut self, other: &NumberStats) {
         self.moments.merge(&other.moments);
         self.sketch.merge(&other.sketch);
+        let few_limit = self.few_limit();
+        match (&mut self.few, &other.few) {
+            (Some(mine), Some(theirs)) => {
+                if !mine.merge(theirs, few_limit) {
+                    self.spill_few();
+                }
+            }
+            (Some(_), None) => self.spill_few(),
+            (None, Some(theirs)) => {
+                theirs.pairs().for_each(|(v, c)| self.sketch.add_weighted(v, c));
+                self.sketch.settle();
+            }
+            (None, None) => {}
+        }
         self.exact = match (self.exact.take(), &other.exact) {
             (Some(mut mine), Some(theirs)) if mine.len() + theirs.len() <= self.exact_limit => {
                 mine.extend_from_slice(theirs);
@@ -100,9 +143,9 @@ impl NumberStats {
         self.neg_inf += other.neg_inf;
     }
 
-    /// True while every value is kept (statistics are exact).
+    /// True while every value is kept or counted by value (statistics are exact).
     pub fn is_exact(&self) -> bool {
-        self.exact.is_some()
+        self.exact.is_some() || self.few.is_some()
     }
 
     /// Share of values strictly below `x` (from the sketch when not exact).
@@ -111,9 +154,10 @@ impl NumberStats {
         if n == 0 {
             return 0.0;
         }
-        match &self.exact {
-            Some(values) => values.iter().filter(|v| **v < x).count() as f64 / n as f64,
-            None => self.sketch.rank(x.next_down()),
+        match (&self.exact, &self.few) {
+            (Some(values), _) => values.iter().filter(|v| **v < x).count() as f64 / n as f64,
+            (None, Some(few)) => few.count_where(|v| v < x) as f64 / n as f64,
+            (None, None) => self.sketch.rank(x.next_down()),
         }
     }
 
@@ -121,13 +165,14 @@ impl NumberStats {
         if self.moments.count() == 0 {
             return None;
         }
-        Some(match &self.exact {
-            Some(values) => QuantileSet {
+        Some(match (&self.exact, &self.few) {
+            (Some(values), _) => QuantileSet {
                 values: quantiles::exact(values, &PROFILE_PROBABILITIES).into_iter().flatten().collect(),
                 exact: true,
                 rank_error: None,
             },
-            None => QuantileSet {
+            (None, Some(few)) => QuantileSet { values: few.quantiles(&PROFILE_PROBABILITIES), exact: true, rank_error: None },
+            (None, None) => QuantileSet {
                 values: PROFILE_PROBABILITIES.iter().filter_map(|&p| self.sketch.quantile(p)).collect(),
                 exact: false,
                 rank_error: Some(kll::RANK_ERROR),
@@ -142,17 +187,20 @@ impl NumberStats {
         let (q1, q3) = (q.values[2], q.values[4]);
         let iqr = q3 - q1;
         let (lo, hi) = (q1 - k * iqr, q3 + k * iqr);
-        Some(match &self.exact {
-            Some(values) => {
+        Some(match (&self.exact, &self.few) {
+            (Some(values), _) => {
                 let below = values.iter().filter(|v| **v < lo).count() as u64;
                 let above = values.iter().filter(|v| **v > hi).count() as u64;
                 (q1, q3, below, above)
             }
-            None => {
+            (None, Some(few)) => (q1, q3, few.count_where(|v| v < lo), few.count_where(|v| v > hi)),
+            (None, None) => {
                 let n = self.moments.count() as f64;
                 // Ranks are ≤-counts; below the low fence, take the count just under it.
-                let below = if self.moments.min()? < lo { (self.sketch.rank(lo) * n).round() as u64 } else { 0 };
-                let above = if self.moments.max()? > hi { ((1.0 - self.sketch.rank(hi)) * n).round() as u64 } else { 0 };
+                // The exact min and max prove at least one value beyond a
+                // fence even when the estimate rounds to none.
+                let below = if self.moments.min()? < lo { ((self.sketch.rank(lo) * n).round() as u64).max(1) } else { 0 };
+                let above = if self.moments.max()? > hi { (((1.0 - self.sketch.rank(hi)) * n).round() as u64).max(1) } else { 0 };
                 (q1, q3, below, above)
             }
         })
@@ -171,6 +219,12 @@ impl NumberStats {
         }
         let n = self.moments.count() as f64;
         let (lo, hi) = (self.moments.min()?, self.moments.max()?);
+        if let Some(few) = &self.few {
+            let q = few.quantiles(&[0.25, 0.75]);
+            let edges = histogram::auto_edges_from_summary(lo, hi, q[0], q[1], n, !self.fractional);
+            let counts = few.histogram_counts(&edges);
+            return Some(Histogram { edges, counts, exact: true });
+        }
         let q = |p| self.sketch.quantile(p).unwrap_or(lo);
         let edges = histogram::auto_edges_from_summary(lo, hi, q(0.25), q(0.75), n, !self.fractional);
         let mut counts = Vec::with_capacity(edges.len().saturating_sub(1));
@@ -219,4 +273,70 @@ mod tests {
         let total: u64 = h.counts.iter().sum();
         assert!((total as f64 - 60_000.0).abs() <= 60_000.0 * kll::RANK_ERROR, "{total}");
     }
+
+    #[test]
+    fn a_single_far_value_is_found_even_from_the_sketch() {
+        // 50,000 values, one of them far out: the sketch's rank estimate
+        // rounds its share to nothing, but the exact maximum proves it.
+        let mut s = NumberStats::new();
+        (0..49_999).for_each(|i| s.add((i % 5_000) as f64));
+        s.add(1e6);
+        assert!(!s.is_exact());
+        let (_, _, below, above) = s.outside_fences(3.0).unwrap();
+        assert_eq!((below, above), (0, 1));
+    }
+
+
+    #[test]
+    fn few_distinct_values_stay_exact_at_any_count() {
+        // 200,000 list lengths 0..=5: past the 10,000-value sample, still exact.
+        let values: Vec<f64> = (0..200_000u64).map(|i| ((i * 2_654_435_761) % 6) as f64).collect();
+        let (mut a, mut b) = (NumberStats::new(), NumberStats::new());
+        values[..70_000].iter().for_each(|&v| a.add(v));
+        values[70_000..].iter().for_each(|&v| b.add(v));
+        a.merge(&b);
+        let q = a.quantiles().unwrap();
+        assert!(q.exact);
+        let spelled: Vec<f64> = quantiles::exact(&values, &PROFILE_PROBABILITIES).into_iter().flatten().collect();
+        assert_eq!(q.values, spelled);
+        let h = a.histogram().unwrap();
+        assert!(h.exact);
+        assert_eq!(h.edges, histogram::auto_edges_with(&values, true));
+        assert_eq!(h.counts, histogram::counts(&values, &h.edges));
+    }
+
+    #[test]
+    fn spilling_counted_values_into_the_sketch_keeps_its_rank_error() {
+        // Mostly one heavy value, then a spread that passes the few-values
+        // limit, fed single and in merged parts whose modes differ.
+        let mut state = 7u64;
+        let mut next = || {
+            state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+            (state >> 11) as f64 / (1u64 << 53) as f64
+        };
+        let values: Vec<f64> = (0..300_000).map(|i| if i % 10 < 8 { 0.0 } else { 1.0 + next() }).collect();
+        let mut whole = NumberStats::new();
+        values.iter().for_each(|&v| whole.add(v));
+        let mut merged = NumberStats::new();
+        let mut part = NumberStats::new();
+        values[..5_000].iter().for_each(|&v| part.add(v)); // few values still
+        let mut rest = NumberStats::new();
+        values[5_000..].iter().for_each(|&v| rest.add(v)); // spilled
+        merged.merge(&part);
+        merged.merge(&rest);
+        let mut sorted = values.clone();
+        sorted.sort_by(f64::total_cmp);
+        for s in [&whole, &merged] {
+            let q = s.quantiles().unwrap();
+            assert!(!q.exact);
+            for (p, v) in PROFILE_PROBABILITIES.iter().zip(&q.values) {
+                let below = sorted.partition_point(|x| x < v) as f64;
+                let at_most = sorted.partition_point(|x| x <= v) as f64;
+                let target = p * sorted.len() as f64;
+                let miss = if target < below { below - target } else if target > at_most { target - at_most } else { 0.0 };
+                assert!(miss / sorted.len() as f64 <= kll::RANK_ERROR, "p{p}: {v}");
+            }
+        }
+    }
+
 }

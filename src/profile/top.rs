@@ -103,8 +103,8 @@ impl TopValues {
             return;
         }
         let mut counts: Vec<u64> = self.counts.values().map(|(c, _)| *c).collect();
-        counts.sort_unstable_by(|a, b| b.cmp(a));
-        let cut = counts[self.counters];
+        // The (k+1)-th largest count, in linear time.
+        let (_, &mut cut, _) = counts.select_nth_unstable_by(self.counters, |a, b| b.cmp(a));
         self.counts.retain(|_, (c, _)| *c > cut);
         self.counts.values_mut().for_each(|(c, _)| *c -= cut);
     }

@@ -80,7 +80,7 @@ fn main() {
     if std::env::var_os("PLUMBLINE_BENCH_SKIP_MEMORY").is_some() {
         return;
     }
-    let big = data_file("plumbline-bench-mixed-52m.parquet", PEERS, &["make-parquet", "52000000"]);
+    let big = data_file("plumbline-bench-mixed-66m.parquet", PEERS, &["make-parquet", "66000000"]);
     let gb = std::fs::metadata(&big).unwrap().len() as f64 / 1e9;
     assert!(gb >= 4.0, "{} is only {gb:.2} GB", big.display());
     let ours = peak_rss_mb(&plumbline_binary(), &["profile", big.to_str().unwrap()]);
