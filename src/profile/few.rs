@@ -6,7 +6,6 @@
 use std::collections::HashMap;
 use std::hash::{BuildHasherDefault, Hasher};
 
-use super::quantiles;
 
 /// Distinct values counted before the stream goes to the sketch.
 pub const FEW_VALUES: usize = 1024;
