@@ -17,11 +17,10 @@ quantiles p1 p5 p25 p50 p75 p95 p99 with linear interpolation — the same
 set Plumbline reports. Each timing prints one number (seconds) on stdout.
 """
 
-import datetime
 import json
-import statistics
 import sys
-import time
+
+from peers import median_seconds  # same folder: the script's own path is on sys.path
 
 CHUNK = 1 << 20
 QUANTILES = [0.01, 0.05, 0.25, 0.5, 0.75, 0.95, 0.99]
@@ -140,15 +139,6 @@ def polars_profile(df):
             elements = df.select(pl.col(name).explode())
             out.append(elements.select(stat_exprs(f"{name}[]", pl.col(name), dtype.inner.is_numeric())))
     return out
-
-
-def median_seconds(fn, runs):
-    times = []
-    for _ in range(runs):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
 
 
 def main():
