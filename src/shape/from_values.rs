@@ -33,6 +33,7 @@ fn observe_int(node: &mut FieldShape, v: i128) {
 
 pub fn observe_value(node: &mut FieldShape, value: &Value, row: u64) {
     node.appeared += 1;
+    node.seen_at(row);
     let kind = match value {
         Value::Null => {
             node.kinds.add(Kind::Null, 1);
