@@ -348,3 +348,37 @@ fn sample_options_out_of_range_are_refused() {
         assert!(stderr(&o).starts_with("error:"), "{args:?}: {}", stderr(&o));
     }
 }
+
+#[test]
+fn json_rows_split_across_threads_keep_first_appearance_order_and_row_numbers() {
+    // Two batches of 8,192 rows; with two threads each batch is split in
+    // halves. `x` first appears in the second half of batch 1, `y` in the
+    // first half of batch 2: the report must list x before y, as one
+    // thread reading in order would, and name the rows of the examples.
+    let dir = tempfile::tempdir().unwrap();
+    let mut text = String::new();
+    for row in 0..12_000 {
+        let m = if row == 100 || row == 6_000 { "\"text\"".to_string() } else { row.to_string() };
+        let extra = match row {
+            5_000 => ",\"x\":1",
+            9_000 => ",\"y\":2",
+            _ => "",
+        };
+        text.push_str(&format!("{{\"id\":{row},\"m\":{m}{extra}}}\n"));
+    }
+    let path = write(dir.path(), "split.jsonl", &text);
+    let report = dir.path().join("r.json");
+    let o = Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .args(["profile", path.to_str().unwrap(), "--json", report.to_str().unwrap()])
+        .env("RAYON_NUM_THREADS", "2")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r = read_json(&report);
+    let paths: Vec<&str> = r["fields"].as_array().unwrap().iter().map(|f| f["path"].as_str().unwrap()).collect();
+    assert_eq!(paths, ["id", "m", "x", "y"]);
+    let m = r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "m").unwrap();
+    let rows: Vec<u64> = m["examples"].as_array().unwrap().iter().map(|e| e["row"].as_u64().unwrap()).collect();
+    assert_eq!(rows, [100, 6_000]);
+    assert_eq!(m["count"], 12_000);
+}
