@@ -15,4 +15,5 @@ pub mod scan;
 pub mod shape;
 pub mod source;
 pub mod time;
+pub mod types;
 pub mod value;

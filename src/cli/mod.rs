@@ -12,6 +12,7 @@ use clap::{Parser, Subcommand};
 use crate::report::{self, ReportOptions};
 use crate::scan::{self, SampleOptions, ScanOptions};
 use crate::source::{FormatChoice, OpenOptions};
+use crate::types::{Lang, MixedChoice, Optionality, TypeOptions};
 
 #[derive(Debug, Parser)]
 #[command(name = "plumbline", version, about = "Shape, quality and record types for data files you have never seen")]
@@ -26,6 +27,42 @@ pub struct Cli {
 pub enum Command {
     /// Print the field tree of a source and optionally write the JSON report.
     Profile(ProfileArgs),
+    /// Write record types that fit every row read.
+    Types(TypesArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct TypesArgs {
+    /// A file or directory of part files, as for `profile`.
+    pub path: PathBuf,
+    /// The language to write.
+    #[arg(long, value_enum)]
+    pub lang: Lang,
+    /// Name of the root type (one row); the file's name by default.
+    #[arg(long, value_name = "NAME")]
+    pub root: Option<String>,
+    /// Which fields are optional: where nulls or missing keys were seen,
+    /// where the declared schema allows nulls, or every field.
+    #[arg(long, value_enum, default_value_t = Optionality::Observed)]
+    pub optional: Optionality,
+    /// Fields of several kinds: one type that accepts each, or a union.
+    #[arg(long, value_enum, default_value_t = MixedChoice::Widest)]
+    pub mixed: MixedChoice,
+    /// Write to this file (atomically) instead of standard output.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Replace the -o file if it exists.
+    #[arg(long)]
+    pub force: bool,
+    /// Read the file as this format instead of detecting it.
+    #[arg(long, value_enum)]
+    pub format: Option<FormatChoice>,
+    /// Derive the types from a uniform sample of N rows (the header says so).
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u64).range(1..=crate::sample::MAX_ROWS as u64))]
+    pub sample: Option<u64>,
+    /// Seed of the sample.
+    #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
+    pub seed: u64,
 }
 
 #[derive(Debug, clap::Args)]
@@ -62,6 +99,7 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Some(Command::Profile(args)) => run_profile(&args),
+        Some(Command::Types(args)) => run_types(&args),
         None => match crate::gui::run(cli.path) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
@@ -77,7 +115,7 @@ fn fail(message: &dyn std::fmt::Display) -> ExitCode {
 fn run_profile(args: &ProfileArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
     let sample = args.sample.map(|rows| SampleOptions { rows: rows.min(usize::MAX as u64) as usize, seed: args.seed });
-    let options = ScanOptions { shape_only: args.shape_only, sample };
+    let options = ScanOptions { shape_only: args.shape_only, sample, ..Default::default() };
     let stop = AtomicBool::new(false);
     // Drawn only when stderr is a terminal (indicatif checks).
     let bar = indicatif::ProgressBar::with_draw_target(None, indicatif::ProgressDrawTarget::stderr());
@@ -107,5 +145,39 @@ fn run_profile(args: &ProfileArgs) -> ExitCode {
     match &scan.coverage {
         scan::Coverage::Broken { error, .. } => fail(error),
         _ => ExitCode::SUCCESS,
+    }
+}
+
+fn run_types(args: &TypesArgs) -> ExitCode {
+    let open = OpenOptions { format: args.format };
+    let sample = args.sample.map(|rows| SampleOptions { rows: rows as usize, seed: args.seed });
+    let options = ScanOptions { sample, skip_statistics: true, ..Default::default() };
+    let stop = AtomicBool::new(false);
+    let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
+        Ok(s) => s,
+        Err(e) => return fail(&e),
+    };
+    if let scan::Coverage::Broken { error, .. } = &scan.coverage {
+        // Types from part of a file would be a silent partial result.
+        return fail(error);
+    }
+    let type_options = TypeOptions {
+        root: args.root.clone().unwrap_or_else(|| crate::types::default_root(&scan)),
+        optional: args.optional,
+        mixed: args.mixed,
+    };
+    let generated = crate::types::generate(&scan, args.lang, &type_options);
+    for warning in &generated.warnings {
+        eprintln!("warning: {warning}");
+    }
+    match &args.output {
+        Some(path) => match report::write::write_atomically(path, generated.code.as_bytes(), args.force) {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(e) => fail(&e),
+        },
+        None => {
+            print!("{}", generated.code);
+            ExitCode::SUCCESS
+        }
     }
 }

@@ -21,6 +21,16 @@ pub struct ScanOptions {
     pub shape_only: bool,
     /// Profile a uniform sample of this many rows instead of every row.
     pub sample: Option<SampleOptions>,
+    /// Read every row for the shape (kinds, nulls, missing keys) but keep
+    /// no statistics (record types need only the shape).
+    pub skip_statistics: bool,
+}
+
+impl ScanOptions {
+    /// Whether the Shape's fields gather statistics.
+    pub fn profiles(&self) -> bool {
+        !self.shape_only && !self.skip_statistics
+    }
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -110,7 +120,7 @@ pub fn scan_source(
     progress: &mut dyn FnMut(Progress),
 ) -> Scan {
     let info = source.info().clone();
-    let mut builder = ShapeBuilder::new(&info, !options.shape_only);
+    let mut builder = ShapeBuilder::new(&info, options.profiles());
     let has_schema = info.schema.is_some();
     if options.shape_only && has_schema {
         return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly, sample: None };
@@ -118,12 +128,12 @@ pub fn scan_source(
     if !options.shape_only
         && let Some(sample) = options.sample
     {
-        return sample::scan_sample(source, info, sample, stop, progress);
+        return sample::scan_sample(source, info, sample, options.profiles(), stop, progress);
     }
     if !options.shape_only
         && let Some(parts) = source.split()
     {
-        return parts::scan_parts(info, parts, stop, progress);
+        return parts::scan_parts(info, parts, options.profiles(), stop, progress);
     }
     let row_limit = options.shape_only.then_some(SHAPE_ONLY_ROWS);
     let mut next = source.next_batch();

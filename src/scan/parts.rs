@@ -10,12 +10,18 @@ use crate::source::{Progress, Source, SourceInfo};
 /// into its own builder, merging each window into the result in order so
 /// memory holds only a window's builders. A part that breaks or is stopped
 /// ends the scan there, keeping everything before it.
-pub(super) fn scan_parts(info: SourceInfo, parts: Vec<Box<dyn Source>>, stop: &AtomicBool, progress: &mut dyn FnMut(Progress)) -> Scan {
+pub(super) fn scan_parts(
+    info: SourceInfo,
+    parts: Vec<Box<dyn Source>>,
+    profile: bool,
+    stop: &AtomicBool,
+    progress: &mut dyn FnMut(Progress),
+) -> Scan {
     use rayon::prelude::*;
 
     let window = 2 * rayon::current_num_threads().max(1);
     let total = info.rows.unwrap_or(0);
-    let mut merged = ShapeBuilder::new(&info, true);
+    let mut merged = ShapeBuilder::new(&info, profile);
     let mut parts = parts.into_iter();
     let mut coverage = Coverage::Full;
     'windows: loop {
@@ -26,7 +32,7 @@ pub(super) fn scan_parts(info: SourceInfo, parts: Vec<Box<dyn Source>>, stop: &A
         let results: Vec<(ShapeBuilder, Option<String>, bool)> = batch
             .into_par_iter()
             .map(|mut part| {
-                let mut builder = ShapeBuilder::new(&info, true);
+                let mut builder = ShapeBuilder::new(&info, profile);
                 loop {
                     if stop.load(Ordering::Relaxed) {
                         return (builder, None, true);

@@ -12,6 +12,7 @@ pub(super) fn scan_sample(
     source: &mut dyn Source,
     info: SourceInfo,
     options: SampleOptions,
+    profile: bool,
     stop: &AtomicBool,
     progress: &mut dyn FnMut(Progress),
 ) -> Scan {
@@ -32,7 +33,7 @@ pub(super) fn scan_sample(
         progress(source.progress());
     };
     let from_rows = kept.seen();
-    let mut builder = ShapeBuilder::new(&info, true);
+    let mut builder = ShapeBuilder::new(&info, profile);
     let mut stream_rows = Vec::new();
     match kept.finish() {
         Ok(batches) => {
