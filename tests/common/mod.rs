@@ -92,3 +92,28 @@ pub fn run_reference_script(script: &str, args: &[&std::ffi::OsStr], needs: &str
         }
     }
 }
+
+/// Exit code of a reference script whose package is not installed.
+pub const PACKAGE_MISSING: i32 = 3;
+
+/// Runs a checking script under `tests/reference/` and returns its stdout.
+/// The script itself judges: any failure fails the test, except a missing
+/// python3 or package (exit code [`PACKAGE_MISSING`]), which is reported
+/// loudly and returns `None` — or fails under CI (`CI=true`).
+pub fn run_reference_check(script: &str, args: &[&std::ffi::OsStr], needs: &str) -> Option<String> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference").join(script);
+    let not_run = |why: String| {
+        let message = format!("REFERENCE CHECK NOT RUN: python3 with {needs} is needed ({})", why.trim());
+        if std::env::var("CI").is_ok_and(|v| v == "true") {
+            panic!("{message}");
+        }
+        eprintln!("\n*** {message} ***\n");
+        None
+    };
+    match std::process::Command::new("python3").arg(&path).args(args).output() {
+        Err(e) => not_run(e.to_string()),
+        Ok(o) if o.status.code() == Some(PACKAGE_MISSING) => not_run(String::from_utf8_lossy(&o.stderr).into_owned()),
+        Ok(o) if o.status.success() => Some(String::from_utf8_lossy(&o.stdout).into_owned()),
+        Ok(o) => panic!("{script} {args:?} failed:\n{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr)),
+    }
+}

@@ -1,0 +1,105 @@
+"""Checks generated record types with tools outside Plumbline.
+
+  python-module MODULE ROWS ROOT   imports the generated Python module with
+                                   python3, builds ROOT.from_dict(row) for
+                                   every JSON Lines row and checks every
+                                   attribute against its type hint
+  json-schema SCHEMA ROWS          checks the schema against the draft 2020-12
+                                   metaschema (python-jsonschema) and
+                                   validates every row, formats included
+
+Prints the number of rows that fit; exits 1 at the first row that does not
+(naming its line), 3 when a needed package is missing.
+"""
+
+import dataclasses
+import importlib.util
+import json
+import sys
+import typing
+
+
+def rows(path):
+    with open(path, encoding="utf-8") as f:
+        for number, line in enumerate(f, 1):
+            yield number, json.loads(line)
+
+
+def conforms(value, hint):
+    """True when `value` is of the type hint (typing's own view of it)."""
+    if hint is typing.Any:
+        return True
+    origin, args = typing.get_origin(hint), typing.get_args(hint)
+    if origin is typing.Union:
+        return any(conforms(value, a) for a in args)
+    if origin is list:
+        return isinstance(value, list) and all(conforms(v, args[0]) for v in value)
+    if origin is dict:
+        return isinstance(value, dict) and all(conforms(k, args[0]) and conforms(v, args[1]) for k, v in value.items())
+    if hint is type(None):
+        return value is None
+    if dataclasses.is_dataclass(hint):
+        return isinstance(value, hint) and instance_conforms(value)
+    if hint is int:
+        return isinstance(value, int) and not isinstance(value, bool)
+    return isinstance(value, hint)
+
+
+def instance_conforms(instance):
+    hints = typing.get_type_hints(type(instance))
+    for field in dataclasses.fields(instance):
+        value = getattr(instance, field.name)
+        if not conforms(value, hints[field.name]):
+            raise TypeError(f"{field.name} = {value!r} is not {hints[field.name]}")
+    return True
+
+
+def python_module(module_path, rows_path, root):
+    spec = importlib.util.spec_from_file_location("generated_types", module_path)
+    module = importlib.util.module_from_spec(spec)
+    # As `import` does: dataclasses look the module up while building classes.
+    sys.modules["generated_types"] = module
+    spec.loader.exec_module(module)
+    cls = getattr(module, root)
+    count = 0
+    for number, row in rows(rows_path):
+        try:
+            instance_conforms(cls.from_dict(row))
+        except Exception as e:  # any failure is a row that does not fit
+            sys.exit(f"line {number}: {type(e).__name__}: {e}")
+        count += 1
+    print(count)
+
+
+def json_schema(schema_path, rows_path):
+    try:
+        import jsonschema
+        import rfc3339_validator  # noqa: F401 (enables the date-time format check)
+    except ImportError as e:
+        print(e, file=sys.stderr)
+        sys.exit(3)
+    with open(schema_path, encoding="utf-8") as f:
+        schema = json.load(f)
+    jsonschema.Draft202012Validator.check_schema(schema)
+    validator = jsonschema.Draft202012Validator(schema, format_checker=jsonschema.Draft202012Validator.FORMAT_CHECKER)
+    count = 0
+    for number, row in rows(rows_path):
+        error = jsonschema.exceptions.best_match(validator.iter_errors(row))
+        if error is not None:
+            sys.exit(f"line {number}: {error.json_path}: {error.message}")
+        count += 1
+    print(count)
+
+
+def main():
+    command = sys.argv[1]
+    if command == "python-module":
+        python_module(sys.argv[2], sys.argv[3], sys.argv[4])
+    elif command == "json-schema":
+        json_schema(sys.argv[2], sys.argv[3])
+    else:
+        sys.exit(f"unknown command {command}")
+
+
+if __name__ == "__main__":
+    main()

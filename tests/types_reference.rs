@@ -1,0 +1,77 @@
+//! Proof of the Python and JSON Schema targets with tools outside the
+//! project (tests/reference/check_types.py): python3 imports the generated
+//! module and builds an instance from every row; python-jsonschema checks
+//! the generated schema against the draft 2020-12 metaschema and validates
+//! every row, formats included.
+
+mod common;
+#[path = "types/nasty.rs"]
+mod nasty;
+
+use std::ffi::OsStr;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn generate(input: &Path, lang: &str, extra: &[&str], out: &Path) {
+    let mut args = vec!["types", input.to_str().unwrap(), "--lang", lang, "--root", "Row", "-o", out.to_str().unwrap()];
+    args.extend(extra);
+    let o = Command::new(env!("CARGO_BIN_EXE_plumbline")).args(&args).output().unwrap();
+    assert!(o.status.success(), "{args:?}: {}", String::from_utf8_lossy(&o.stderr));
+}
+
+fn sample(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
+}
+
+/// Inputs and option sets every target is proven on.
+fn cases(dir: &Path) -> Vec<(String, PathBuf, Vec<&'static str>)> {
+    let nasty_rows = dir.join("nasty.jsonl");
+    std::fs::write(&nasty_rows, nasty::nasty_jsonl(40)).unwrap();
+    vec![
+        ("deliveries".into(), sample("deliveries.jsonl"), vec![]),
+        ("deliveries, unions".into(), sample("deliveries.jsonl"), vec!["--mixed", "union"]),
+        ("deliveries, all optional".into(), sample("deliveries.jsonl"), vec!["--optional", "all"]),
+        ("nasty names".into(), nasty_rows, vec![]),
+    ]
+}
+
+fn lines(path: &Path) -> String {
+    std::fs::read_to_string(path).unwrap().lines().count().to_string()
+}
+
+fn check(lang: &str, extension: &str, command: &str, needs: &str) {
+    let dir = tempfile::tempdir().unwrap();
+    for (i, (name, input, extra)) in cases(dir.path()).into_iter().enumerate() {
+        let generated = dir.path().join(format!("case{i}.{extension}"));
+        generate(&input, lang, &extra, &generated);
+        let mut args: Vec<&OsStr> = vec![OsStr::new(command), generated.as_os_str(), input.as_os_str()];
+        if command == "python-module" {
+            args.push(OsStr::new("Row"));
+        }
+        let Some(fitted) = common::run_reference_check("check_types.py", &args, needs) else { return };
+        assert_eq!(fitted.trim(), lines(&input), "{name}: every row fits");
+    }
+    // The later drop drifted (a field turned from text to number, …): the
+    // first drop's types must not fit it, so the proof can fail.
+    let generated = dir.path().join(format!("first.{extension}"));
+    generate(&sample("deliveries.jsonl"), lang, &[], &generated);
+    let later = sample("later/deliveries.jsonl");
+    let mut args: Vec<&OsStr> = vec![OsStr::new(command), generated.as_os_str(), later.as_os_str()];
+    if command == "python-module" {
+        args.push(OsStr::new("Row"));
+    }
+    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference/check_types.py");
+    let o = Command::new("python3").arg(script).args(&args).output().unwrap();
+    assert_eq!(o.status.code(), Some(1), "the drifted drop should not fit: {}", String::from_utf8_lossy(&o.stdout));
+    assert!(String::from_utf8_lossy(&o.stderr).starts_with("line "), "{}", String::from_utf8_lossy(&o.stderr));
+}
+
+#[test]
+fn generated_python_imports_and_builds_every_row() {
+    check("python", "py", "python-module", "python3 3.10 or later");
+}
+
+#[test]
+fn generated_json_schema_is_valid_and_every_row_validates() {
+    check("json-schema", "json", "json-schema", "jsonschema and rfc3339-validator");
+}
