@@ -9,6 +9,7 @@ pub mod model;
 pub mod naming;
 pub mod python;
 pub mod rust;
+pub mod typescript;
 
 use crate::scan::{Coverage, Scan};
 pub use model::Optionality;
@@ -21,6 +22,8 @@ pub enum Lang {
     Python,
     /// JSON Schema draft 2020-12.
     JsonSchema,
+    /// TypeScript interfaces (`?` for missing keys, `| null` for nulls).
+    Typescript,
 }
 
 /// What to do with a field whose values are of several kinds.
@@ -95,6 +98,7 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
         Lang::Rust => rust::render(model, &header, options),
         Lang::Python => python::render(model, &header, options),
         Lang::JsonSchema => json_schema::render(model, &header, options),
+        Lang::Typescript => typescript::render(model, &header, options),
     }
 }
 
