@@ -12,7 +12,7 @@ use clap::{Parser, Subcommand};
 use crate::report::{self, ReportOptions};
 use crate::scan::{self, SampleOptions, ScanOptions};
 use crate::source::{FormatChoice, OpenOptions};
-use crate::types::{Lang, MixedChoice, Optionality, TypeOptions};
+use crate::types::{Lang, MixedChoice, Optionality, TimeChoice, TypeOptions};
 
 #[derive(Debug, Parser)]
 #[command(name = "plumbline", version, about = "Shape, quality and record types for data files you have never seen")]
@@ -48,6 +48,9 @@ pub struct TypesArgs {
     /// Fields of several kinds: one type that accepts each, or a union.
     #[arg(long, value_enum, default_value_t = MixedChoice::Widest)]
     pub mixed: MixedChoice,
+    /// Date and instant types where the language has a choice (Scala).
+    #[arg(long, value_enum, default_value_t = TimeChoice::Sql)]
+    pub time: TimeChoice,
     /// Write to this file (atomically) instead of standard output.
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: Option<PathBuf>,
@@ -165,6 +168,7 @@ fn run_types(args: &TypesArgs) -> ExitCode {
         root: args.root.clone().unwrap_or_else(|| crate::types::default_root(&scan)),
         optional: args.optional,
         mixed: args.mixed,
+        time: args.time,
     };
     let generated = crate::types::generate(&scan, args.lang, &type_options);
     for warning in &generated.warnings {

@@ -9,6 +9,8 @@ pub mod model;
 pub mod naming;
 pub mod python;
 pub mod rust;
+pub mod scala;
+pub mod spark_ddl;
 pub mod typescript;
 
 use crate::scan::{Coverage, Scan};
@@ -16,6 +18,10 @@ pub use model::Optionality;
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
 pub enum Lang {
+    /// Scala case classes for typed datasets.
+    Scala,
+    /// The Spark SQL DDL schema string.
+    SparkDdl,
     /// Rust structs with serde derive (chrono, rust_decimal).
     Rust,
     /// Python dataclasses with type hints and a `from_dict` per class.
@@ -36,12 +42,23 @@ pub enum MixedChoice {
     Union,
 }
 
+/// Date and instant types where the language has a choice (Scala).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, clap::ValueEnum)]
+pub enum TimeChoice {
+    /// `java.sql.Date`, `java.sql.Timestamp`.
+    #[default]
+    Sql,
+    /// `java.time.LocalDate`, `java.time.Instant`.
+    JavaTime,
+}
+
 #[derive(Debug, Clone)]
 pub struct TypeOptions {
     /// Name of the root type (one row).
     pub root: String,
     pub optional: Optionality,
     pub mixed: MixedChoice,
+    pub time: TimeChoice,
 }
 
 /// The facts every generated file starts with.
@@ -95,6 +112,8 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
     let model = model::build(&scan.shape, options.optional, rows_read);
     let header = Header::of(scan);
     match lang {
+        Lang::Scala => scala::render(model, &header, options),
+        Lang::SparkDdl => spark_ddl::render(model, &header, options),
         Lang::Rust => rust::render(model, &header, options),
         Lang::Python => python::render(model, &header, options),
         Lang::JsonSchema => json_schema::render(model, &header, options),
