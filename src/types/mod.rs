@@ -7,6 +7,7 @@
 pub mod json_schema;
 pub mod model;
 pub mod naming;
+pub mod proto;
 pub mod python;
 pub mod rust;
 pub mod scala;
@@ -30,6 +31,8 @@ pub enum Lang {
     JsonSchema,
     /// TypeScript interfaces (`?` for missing keys, `| null` for nulls).
     Typescript,
+    /// Protocol Buffers, proto3.
+    Proto,
 }
 
 /// What to do with a field whose values are of several kinds.
@@ -118,6 +121,7 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
         Lang::Python => python::render(model, &header, options),
         Lang::JsonSchema => json_schema::render(model, &header, options),
         Lang::Typescript => typescript::render(model, &header, options),
+        Lang::Proto => proto::render(model, &header, options),
     }
 }
 
