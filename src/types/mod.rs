@@ -4,6 +4,7 @@
 //! Generated code describes the rows that were read: its header says how
 //! many, and whether they were a sample or only part of the source.
 
+pub mod avro;
 pub mod json_schema;
 pub mod model;
 pub mod naming;
@@ -31,6 +32,8 @@ pub enum Lang {
     JsonSchema,
     /// TypeScript interfaces (`?` for missing keys, `| null` for nulls).
     Typescript,
+    /// Apache Avro schema (JSON).
+    Avro,
     /// Protocol Buffers, proto3.
     Proto,
 }
@@ -122,6 +125,7 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
         Lang::JsonSchema => json_schema::render(model, &header, options),
         Lang::Typescript => typescript::render(model, &header, options),
         Lang::Proto => proto::render(model, &header, options),
+        Lang::Avro => avro::render(model, &header, options),
     }
 }
 
