@@ -23,16 +23,23 @@ fn sample(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
 }
 
-/// Inputs and option sets every target is proven on.
-fn cases(dir: &Path) -> Vec<(String, PathBuf, Vec<&'static str>)> {
+/// (name, types from, rows checked, options): the demo JSON Lines, the
+/// demo Parquet file against its rows as pyarrow reads them, nasty names.
+fn cases(dir: &Path) -> Option<Vec<(String, PathBuf, PathBuf, Vec<&'static str>)>> {
     let nasty_rows = dir.join("nasty.jsonl");
     std::fs::write(&nasty_rows, nasty::nasty_jsonl(40)).unwrap();
-    vec![
-        ("deliveries".into(), sample("deliveries.jsonl"), vec![]),
-        ("deliveries, unions".into(), sample("deliveries.jsonl"), vec!["--mixed", "union"]),
-        ("deliveries, all optional".into(), sample("deliveries.jsonl"), vec!["--optional", "all"]),
-        ("nasty names".into(), nasty_rows, vec![]),
-    ]
+    let parquet_rows = dir.join("parquet-rows.jsonl");
+    let parquet = sample("deliveries.parquet");
+    let args = [OsStr::new("parquet-rows"), parquet.as_os_str(), parquet_rows.as_os_str()];
+    common::run_reference_check("check_types.py", &args, "pyarrow")?;
+    let jsonl = sample("deliveries.jsonl");
+    Some(vec![
+        ("deliveries".into(), jsonl.clone(), jsonl.clone(), vec![]),
+        ("deliveries, unions".into(), jsonl.clone(), jsonl.clone(), vec!["--mixed", "union"]),
+        ("deliveries, all optional".into(), jsonl.clone(), jsonl, vec!["--optional", "all"]),
+        ("deliveries.parquet, rows read by pyarrow".into(), sample("deliveries.parquet"), parquet_rows, vec![]),
+        ("nasty names".into(), nasty_rows.clone(), nasty_rows, vec![]),
+    ])
 }
 
 fn lines(path: &Path) -> String {
@@ -41,15 +48,16 @@ fn lines(path: &Path) -> String {
 
 fn check(lang: &str, extension: &str, command: &str, needs: &str) {
     let dir = tempfile::tempdir().unwrap();
-    for (i, (name, input, extra)) in cases(dir.path()).into_iter().enumerate() {
+    let Some(cases) = cases(dir.path()) else { return };
+    for (i, (name, types_from, rows, extra)) in cases.into_iter().enumerate() {
         let generated = dir.path().join(format!("case{i}.{extension}"));
-        generate(&input, lang, &extra, &generated);
-        let mut args: Vec<&OsStr> = vec![OsStr::new(command), generated.as_os_str(), input.as_os_str()];
+        generate(&types_from, lang, &extra, &generated);
+        let mut args: Vec<&OsStr> = vec![OsStr::new(command), generated.as_os_str(), rows.as_os_str()];
         if command == "python-module" {
             args.push(OsStr::new("Row"));
         }
         let Some(fitted) = common::run_reference_check("check_types.py", &args, needs) else { return };
-        assert_eq!(fitted.trim(), lines(&input), "{name}: every row fits");
+        assert_eq!(fitted.trim(), lines(&rows), "{name}: every row fits");
     }
     // The later drop drifted (a field turned from text to number, …): the
     // first drop's types must not fit it, so the proof can fail.

@@ -4,6 +4,9 @@
                                    python3, builds ROOT.from_dict(row) for
                                    every JSON Lines row and checks every
                                    attribute against its type hint
+  parquet-rows PARQUET OUT         writes the Parquet file's rows, as pyarrow
+                                   reads them, as JSON Lines (instants and dates
+                                   in ISO 8601, decimals as text, maps as objects)
   json-schema SCHEMA ROWS          checks the schema against the draft 2020-12
                                    metaschema (python-jsonschema) and
                                    validates every row, formats included
@@ -91,10 +94,45 @@ def json_schema(schema_path, rows_path):
     print(count)
 
 
+def parquet_rows(parquet_path, out_path):
+    try:
+        import pyarrow.parquet as pq
+    except ImportError as e:
+        print(e, file=sys.stderr)
+        sys.exit(3)
+    import datetime
+    import decimal
+
+    def plain(value, arrow_type):
+        import pyarrow as pa
+
+        if value is None:
+            return None
+        if pa.types.is_map(arrow_type):
+            return {k: plain(v, arrow_type.item_type) for k, v in value}
+        if pa.types.is_struct(arrow_type):
+            return {f.name: plain(value[f.name], f.type) for f in arrow_type}
+        if pa.types.is_list(arrow_type) or pa.types.is_large_list(arrow_type):
+            return [plain(v, arrow_type.value_type) for v in value]
+        if isinstance(value, (datetime.datetime, datetime.date, datetime.time)):
+            return value.isoformat()
+        if isinstance(value, decimal.Decimal):
+            return str(value)
+        return value
+
+    table = pq.read_table(parquet_path)
+    with open(out_path, "w", encoding="utf-8") as out:
+        for row in table.to_pylist():
+            record = {f.name: plain(row[f.name], f.type) for f in table.schema}
+            out.write(json.dumps(record, ensure_ascii=False) + "\n")
+
+
 def main():
     command = sys.argv[1]
     if command == "python-module":
         python_module(sys.argv[2], sys.argv[3], sys.argv[4])
+    elif command == "parquet-rows":
+        parquet_rows(sys.argv[2], sys.argv[3])
     elif command == "json-schema":
         json_schema(sys.argv[2], sys.argv[3])
     else:
