@@ -116,8 +116,8 @@ impl Renderer<'_> {
             self.warnings.push(format!("{path}: a repeated field cannot hold nulls; they are read as the default value"));
         }
         match &element.ty {
-            Ty::List(inner) => self.wrapper(inner, &path),
-            Ty::Map { .. } => self.wrapper(element, &path),
+            // `repeated` cannot nest: the inner list or map gets a message.
+            Ty::List(_) | Ty::Map { .. } => self.wrapper(element, &path),
             other => self.element_type(other, &path),
         }
     }

@@ -7,6 +7,8 @@
   parquet-rows PARQUET OUT         writes the Parquet file's rows, as pyarrow
                                    reads them, as JSON Lines (instants and dates
                                    in ISO 8601, decimals as text, maps as objects)
+  corpus-json-schema MANIFEST      for each {schema, parquet} in the JSON
+                                   manifest: the parquet rows against the schema
   json-schema SCHEMA ROWS          checks the schema against the draft 2020-12
                                    metaschema (python-jsonschema) and
                                    validates every row, formats included
@@ -94,43 +96,97 @@ def json_schema(schema_path, rows_path):
     print(count)
 
 
-def parquet_rows(parquet_path, out_path):
-    try:
-        import pyarrow.parquet as pq
-    except ImportError as e:
-        print(e, file=sys.stderr)
-        sys.exit(3)
+def plain(value, arrow_type):
+    """A pyarrow row value as JSON would carry it: ISO 8601 text for dates
+    and times, decimal text, base64 for bytes, objects for maps."""
+    import base64
     import datetime
     import decimal
 
-    def plain(value, arrow_type):
-        import pyarrow as pa
+    import pyarrow as pa
 
-        if value is None:
-            return None
-        if pa.types.is_map(arrow_type):
-            return {k: plain(v, arrow_type.item_type) for k, v in value}
-        if pa.types.is_struct(arrow_type):
-            return {f.name: plain(value[f.name], f.type) for f in arrow_type}
-        if pa.types.is_list(arrow_type) or pa.types.is_large_list(arrow_type):
-            return [plain(v, arrow_type.value_type) for v in value]
-        if isinstance(value, (datetime.datetime, datetime.date, datetime.time)):
-            return value.isoformat()
-        if isinstance(value, decimal.Decimal):
-            return str(value)
-        return value
+    if value is None:
+        return None
+    if pa.types.is_dictionary(arrow_type):
+        return plain(value, arrow_type.value_type)
+    if pa.types.is_map(arrow_type):
+        return {str(k): plain(v, arrow_type.item_type) for k, v in value}
+    if pa.types.is_struct(arrow_type):
+        return {f.name: plain(value[f.name], f.type) for f in arrow_type}
+    if pa.types.is_list(arrow_type) or pa.types.is_large_list(arrow_type) or pa.types.is_fixed_size_list(arrow_type):
+        return [plain(v, arrow_type.value_type) for v in value]
+    if isinstance(value, (datetime.datetime, datetime.date, datetime.time)):
+        return value.isoformat()
+    if isinstance(value, decimal.Decimal):
+        return str(value)
+    if isinstance(value, bytes):
+        return base64.b64encode(value).decode("ascii")
+    return value
+
+
+def parquet_json_rows(parquet_path):
+    import pyarrow.parquet as pq
 
     table = pq.read_table(parquet_path)
+    return [{f.name: plain(row[f.name], f.type) for f in table.schema} for row in table.to_pylist()]
+
+
+def parquet_rows(parquet_path, out_path):
+    try:
+        import pyarrow.parquet  # noqa: F401
+    except ImportError as e:
+        print(e, file=sys.stderr)
+        sys.exit(3)
     with open(out_path, "w", encoding="utf-8") as out:
-        for row in table.to_pylist():
-            record = {f.name: plain(row[f.name], f.type) for f in table.schema}
+        for record in parquet_json_rows(parquet_path):
             out.write(json.dumps(record, ensure_ascii=False) + "\n")
+
+
+def corpus_json_schema(manifest_path):
+    """Validates each Parquet file's rows (as pyarrow reads them) against its
+    generated schema. Prints {parquet: {"rows": n} | {"skipped": why} |
+    {"error": what}}; files pyarrow cannot turn into Python values are
+    skipped with pyarrow's reason."""
+    try:
+        import jsonschema
+        import pyarrow  # noqa: F401
+        import rfc3339_validator  # noqa: F401
+    except ImportError as e:
+        print(e, file=sys.stderr)
+        sys.exit(3)
+    with open(manifest_path, encoding="utf-8") as f:
+        manifest = json.load(f)
+    results = {}
+    for entry in manifest:
+        try:
+            rows = parquet_json_rows(entry["parquet"])
+        except Exception as e:  # pyarrow's own limits, reported per file
+            results[entry["parquet"]] = {"skipped": f"{type(e).__name__}: {e}"}
+            continue
+        with open(entry["schema"], encoding="utf-8") as f:
+            schema = json.load(f)
+        try:
+            jsonschema.Draft202012Validator.check_schema(schema)
+        except jsonschema.exceptions.SchemaError as e:
+            results[entry["parquet"]] = {"error": f"invalid schema: {e.message}"}
+            continue
+        validator = jsonschema.Draft202012Validator(schema, format_checker=jsonschema.Draft202012Validator.FORMAT_CHECKER)
+        result = {"rows": len(rows)}
+        for number, row in enumerate(rows):
+            error = jsonschema.exceptions.best_match(validator.iter_errors(row))
+            if error is not None:
+                result = {"error": f"row {number}: {error.json_path}: {error.message}"}
+                break
+        results[entry["parquet"]] = result
+    print(json.dumps(results))
 
 
 def main():
     command = sys.argv[1]
     if command == "python-module":
         python_module(sys.argv[2], sys.argv[3], sys.argv[4])
+    elif command == "corpus-json-schema":
+        corpus_json_schema(sys.argv[2])
     elif command == "parquet-rows":
         parquet_rows(sys.argv[2], sys.argv[3])
     elif command == "json-schema":
