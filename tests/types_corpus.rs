@@ -1,5 +1,6 @@
 //! Record types for every Parquet file of the corpus (`../shared/corpus/
-//! parquet/data`) that Plumbline reads whole: every target generates; the
+//! parquet/data`) and every little-endian Arrow integration file
+//! (`arrow-ipc/…/integration`) that Plumbline reads whole: every target generates; the
 //! JSON Schema is valid and every row, as pyarrow reads it, validates
 //! (python-jsonschema); the proto3 file compiles with protoc.
 
@@ -24,7 +25,14 @@ const LANGS: [(Lang, &str); 8] = [
 #[test]
 fn every_readable_corpus_file_gets_types_that_hold() {
     let Some(dir) = common::corpus("parquet/data") else { return };
-    let files = common::files_under(&dir, &|p| p.extension().is_some_and(|e| e == "parquet"));
+    let mut files = common::files_under(&dir, &|p| p.extension().is_some_and(|e| e == "parquet"));
+    // The Arrow integration files (little-endian IPC files: pyarrow reads them for the row check).
+    if let Some(ipc) = common::corpus("arrow-ipc/data/arrow-ipc-stream/integration") {
+        files.extend(common::files_under(&ipc, &|p| {
+            let s = p.to_string_lossy();
+            s.ends_with(".arrow_file") && !s.contains("bigendian")
+        }));
+    }
     let out = tempfile::tempdir().unwrap();
     let mut manifest = Vec::new();
     let mut in_scope: Vec<Scan> = Vec::new();
@@ -74,5 +82,5 @@ fn every_readable_corpus_file_gets_types_that_hold() {
     let checked = results.values().filter(|r| r.get("rows").is_some()).count();
     let skipped: Vec<String> = results.iter().filter_map(|(f, r)| r.get("skipped").map(|s| format!("{f}: {s}"))).collect();
     eprintln!("JSON Schema rows checked for {checked} files; pyarrow could not turn these into values:\n{}", skipped.join("\n"));
-    assert!(checked > 40, "only {checked} files checked");
+    assert!(checked > 80, "only {checked} files checked");
 }

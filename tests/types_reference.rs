@@ -83,3 +83,13 @@ fn generated_python_imports_and_builds_every_row() {
 fn generated_json_schema_is_valid_and_every_row_validates() {
     check("json-schema", "json", "json-schema", "jsonschema and rfc3339-validator");
 }
+
+#[test]
+fn the_python_keyword_list_is_pythons_own() {
+    // Python's `keyword.kwlist`, from the interpreter itself.
+    let Some(out) = common::run_reference_check("check_types.py", &[OsStr::new("python-keywords")], "python3") else { return };
+    let theirs: Vec<String> = serde_json::from_str(&out).unwrap();
+    let mut ours: Vec<String> = plumbline::types::python::KEYWORDS.0.iter().map(|s| s.to_string()).collect();
+    ours.sort();
+    assert_eq!(ours, theirs);
+}

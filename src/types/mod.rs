@@ -117,7 +117,8 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
     let rows_read = !matches!(scan.coverage, Coverage::SchemaOnly);
     let model = model::build(&scan.shape, options.optional, rows_read);
     let header = Header::of(scan);
-    match lang {
+    let mut warnings = model.warnings.clone();
+    let mut generated = match lang {
         Lang::Scala => scala::render(model, &header, options),
         Lang::SparkDdl => spark_ddl::render(model, &header, options),
         Lang::Rust => rust::render(model, &header, options),
@@ -126,7 +127,10 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
         Lang::Typescript => typescript::render(model, &header, options),
         Lang::Proto => proto::render(model, &header, options),
         Lang::Avro => avro::render(model, &header, options),
-    }
+    };
+    warnings.append(&mut generated.warnings);
+    generated.warnings = warnings;
+    generated
 }
 
 /// A short description of a mixed field's kinds: `int 3, string 2`.

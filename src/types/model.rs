@@ -103,6 +103,8 @@ pub struct Model {
     /// Nested records first, each before any record that uses it; the
     /// root is last.
     pub records: Vec<Record>,
+    /// What the model could not keep, by field path.
+    pub warnings: Vec<String>,
 }
 
 impl Model {
@@ -128,25 +130,33 @@ pub enum Optionality {
 /// Builds the model of `shape`. `rows_read` is false for a schema-only
 /// shape, where observed optionality falls back to the declared one.
 pub fn build(shape: &Shape, optionality: Optionality, rows_read: bool) -> Model {
-    let mut b = Builder { records: Vec::new(), optionality, rows_read };
+    let mut b = Builder { records: Vec::new(), optionality, rows_read, warnings: Vec::new() };
     b.record("", &shape.fields);
-    Model { records: b.records }
+    Model { records: b.records, warnings: b.warnings }
 }
 
 struct Builder {
     records: Vec<Record>,
     optionality: Optionality,
     rows_read: bool,
+    warnings: Vec<String>,
 }
 
 impl Builder {
     /// Adds the record of these members (or finds an identical one).
     fn record(&mut self, path: &str, members: &[FieldShape]) -> usize {
-        let fields: Vec<Field> = members
-            .iter()
-            .filter(|f| f.role == Role::Member)
-            .map(|f| Field { name: f.name.clone(), slot: self.slot(f), may_be_missing: self.missing(f) })
-            .collect();
+        let mut fields: Vec<Field> = Vec::new();
+        for f in members.iter().filter(|f| f.role == Role::Member) {
+            // Arrow allows a name twice in one struct; no record type can.
+            if fields.iter().any(|seen| seen.name == f.name) {
+                self.warnings.push(format!(
+                    "{}: the name appears more than once in one record; the types keep the first",
+                    f.path
+                ));
+                continue;
+            }
+            fields.push(Field { name: f.name.clone(), slot: self.slot(f), may_be_missing: self.missing(f) });
+        }
         // Records with the same fields share one type.
         if let Some(i) = self.records.iter().position(|r| r.fields == fields) {
             return i;

@@ -4,6 +4,7 @@
                                    python3, builds ROOT.from_dict(row) for
                                    every JSON Lines row and checks every
                                    attribute against its type hint
+  python-keywords                  prints keyword.kwlist (this python3's own list)
   parquet-rows PARQUET OUT         writes the Parquet file's rows, as pyarrow
                                    reads them, as JSON Lines (instants and dates
                                    in ISO 8601, decimals as text, maps as objects)
@@ -102,11 +103,18 @@ def plain(value, arrow_type):
     import base64
     import datetime
     import decimal
+    import uuid
 
     import pyarrow as pa
 
     if value is None:
         return None
+    if pa.types.is_duration(arrow_type):
+        # The count in the column's unit, as the generated schemas say.
+        per = {"s": datetime.timedelta(seconds=1), "ms": datetime.timedelta(milliseconds=1), "us": datetime.timedelta(microseconds=1)}
+        return value // per[arrow_type.unit] if arrow_type.unit in per else value.value
+    if pa.types.is_float16(arrow_type):
+        return float(value)
     if pa.types.is_dictionary(arrow_type):
         return plain(value, arrow_type.value_type)
     if pa.types.is_map(arrow_type):
@@ -121,14 +129,28 @@ def plain(value, arrow_type):
         return str(value)
     if isinstance(value, bytes):
         return base64.b64encode(value).decode("ascii")
+    if isinstance(value, uuid.UUID):  # pyarrow's view of the arrow.uuid extension
+        return str(value)
     return value
 
 
-def parquet_json_rows(parquet_path):
+def parquet_json_rows(path):
+    """Rows of a Parquet or Arrow IPC file (`.arrow_file`), via pyarrow."""
+    import pyarrow as pa
     import pyarrow.parquet as pq
 
-    table = pq.read_table(parquet_path)
-    return [{f.name: plain(row[f.name], f.type) for f in table.schema} for row in table.to_pylist()]
+    table = pa.ipc.open_file(path).read_all() if str(path).endswith(".arrow_file") else pq.read_table(path)
+    # Column by column: a name repeated at the top keeps its first column,
+    # as the generated types do (a dict per row would keep the last).
+    columns = [(f, table.column(i).to_pylist()) for i, f in enumerate(table.schema)]
+    rows = []
+    for r in range(table.num_rows):
+        record = {}
+        for f, values in columns:
+            if f.name not in record:
+                record[f.name] = plain(values[r], f.type)
+        rows.append(record)
+    return rows
 
 
 def parquet_rows(parquet_path, out_path):
@@ -185,6 +207,10 @@ def main():
     command = sys.argv[1]
     if command == "python-module":
         python_module(sys.argv[2], sys.argv[3], sys.argv[4])
+    elif command == "python-keywords":
+        import keyword
+
+        print(json.dumps(sorted(keyword.kwlist)))
     elif command == "corpus-json-schema":
         corpus_json_schema(sys.argv[2])
     elif command == "parquet-rows":
