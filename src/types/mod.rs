@@ -78,6 +78,7 @@ impl Header {
         let info = &scan.info;
         let rows = match scan.coverage {
             Coverage::SchemaOnly => "no rows read (schema only)".to_string(),
+            _ if scan.shape.rows == 1 => "1 row read".to_string(),
             _ => format!("{} rows read", crate::format::group_digits(scan.shape.rows)),
         };
         let mut lines = vec![
@@ -116,7 +117,16 @@ pub fn default_root(scan: &Scan) -> String {
 pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
     let rows_read = !matches!(scan.coverage, Coverage::SchemaOnly);
     let model = model::build(&scan.shape, options.optional, rows_read);
-    let header = Header::of(scan);
+    let mut header = Header::of(scan);
+    header.lines.push(
+        match (options.optional, rows_read) {
+            (Optionality::All, _) => "Every field is optional (--optional all).",
+            (Optionality::Declared, _) => "A field is optional where the declared schema allows nulls (--optional declared).",
+            (Optionality::Observed, true) => "A field is optional where nulls or missing keys were seen (--optional observed).",
+            (Optionality::Observed, false) => "No rows were read: a field is optional where the declared schema allows nulls.",
+        }
+        .to_string(),
+    );
     let mut warnings = model.warnings.clone();
     let mut generated = match lang {
         Lang::Scala => scala::render(model, &header, options),
@@ -129,8 +139,40 @@ pub fn generate(scan: &Scan, lang: Lang, options: &TypeOptions) -> Generated {
         Lang::Avro => avro::render(model, &header, options),
     };
     warnings.append(&mut generated.warnings);
+    generated.code = with_warnings(lang, generated.code, &warnings);
     generated.warnings = warnings;
     generated
+}
+
+/// Adds what could not be expressed exactly to the code itself, as a
+/// closing comment (JSON targets: the top-level `$comment` or `doc`).
+fn with_warnings(lang: Lang, code: String, warnings: &[String]) -> String {
+    if warnings.is_empty() {
+        return code;
+    }
+    let comment = |prefix: &str| {
+        let mut out = code.clone();
+        out.push_str(&format!("\n{prefix} Not expressed exactly (each also shown as a warning):\n"));
+        for w in warnings {
+            out.push_str(&format!("{prefix}   {w}\n"));
+        }
+        out
+    };
+    match lang {
+        Lang::Rust | Lang::Typescript | Lang::Scala | Lang::Proto => comment("//"),
+        Lang::Python => comment("#"),
+        Lang::SparkDdl => comment("--"),
+        Lang::JsonSchema | Lang::Avro => {
+            let key = if lang == Lang::Avro { "doc" } else { "$comment" };
+            let mut value: serde_json::Value = serde_json::from_str(&code).expect("the targets write JSON");
+            if let Some(text) = value.get_mut(key).and_then(|v| v.as_str().map(str::to_string)) {
+                value[key] = serde_json::Value::String(format!("{text} Not expressed exactly: {}", warnings.join("; ")));
+            }
+            let mut out = serde_json::to_string_pretty(&value).expect("JSON serialises");
+            out.push('\n');
+            out
+        }
+    }
 }
 
 /// A short description of a mixed field's kinds: `int 3, string 2`.

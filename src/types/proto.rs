@@ -35,7 +35,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
     for line in &header.lines {
         let _ = writeln!(out, "// {line}");
     }
-    out.push_str("//\n// `optional`: nulls or missing keys were seen (messages always have presence).\n\n");
+    out.push_str("//\n// Optional scalars are `optional` (messages always have presence).\n\n");
     out.push_str("syntax = \"proto3\";\n\npackage plumbline.generated;\n\n");
     // Import only what is used (protoc warns about the rest).
     for (used, file) in [("google.protobuf.Value", "struct"), ("google.protobuf.Timestamp", "timestamp")] {

@@ -32,7 +32,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
         let _ = writeln!(out, "# {line}");
     }
     out.push_str(
-        "#\n# Optional fields (nulls or missing keys seen) are `Optional[...] = None`.\n\n\
+        "#\n# Optional fields are `Optional[...] = None`.\n\n\
          from __future__ import annotations\n\n\
          import dataclasses\nimport datetime\nimport decimal\nfrom typing import Any, ClassVar, Optional, Union\n\n\n\
          def _instant(v: str) -> datetime.datetime:\n    return datetime.datetime.fromisoformat(v)\n",

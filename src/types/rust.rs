@@ -39,7 +39,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
     }
     r.out.push_str(
         "//\n// Needs: serde (derive), serde_json, chrono (serde), rust_decimal (serde).\n\
-         // Optional fields (nulls or missing keys seen) are `Option`.\n\n\
+         // Optional fields are `Option`.\n\n\
          use serde::{Deserialize, Serialize};\n",
     );
     for record in &model.records {

@@ -40,7 +40,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
         TimeChoice::Sql => "java.sql.Date and java.sql.Timestamp (the encoders' defaults)",
         TimeChoice::JavaTime => "java.time.LocalDate and java.time.Instant (supported by the encoders since Spark 3.0)",
     };
-    let _ = writeln!(out, "//\n// Optional fields (nulls or missing keys seen) are `Option`. Dates and instants: {time}.");
+    let _ = writeln!(out, "//\n// Optional fields are `Option`. Dates and instants: {time}.");
     let mut warnings = Vec::new();
     for record in &model.records {
         render_record(&model, record, options, &mut out, &mut warnings);
