@@ -3,40 +3,21 @@
 //! parses and resolves, and every JSON Lines row converts to an Avro value
 //! that encodes against it.
 
+mod common;
 #[path = "types/nasty.rs"]
 mod nasty;
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-fn manifest() -> &'static Path {
-    Path::new(env!("CARGO_MANIFEST_DIR"))
-}
-
-fn proof_target() -> PathBuf {
-    std::env::var_os("CARGO_TARGET_DIR").map(PathBuf::from).unwrap_or_else(|| manifest().join("target")).join("types-proof")
-}
-
 fn sample(name: &str) -> PathBuf {
-    manifest().join("sample-data").join(name)
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
 }
 
 #[test]
 fn apache_avro_parses_the_schema_and_encodes_every_row() {
     let dir = tempfile::tempdir().unwrap();
-    let krate = dir.path().join("proof");
-    std::fs::create_dir_all(krate.join("src")).unwrap();
-    for file in ["Cargo.toml", "Cargo.lock", "src/main.rs"] {
-        std::fs::copy(manifest().join("tests/types/avro_proof").join(file), krate.join(file)).unwrap();
-    }
-    let build = Command::new("cargo")
-        .args(["build", "--quiet", "--locked"])
-        .current_dir(&krate)
-        .env("CARGO_TARGET_DIR", proof_target())
-        .output()
-        .expect("cargo");
-    assert!(build.status.success(), "{}", String::from_utf8_lossy(&build.stderr));
-    let proof = proof_target().join("debug/plumbline-avro-proof");
+    let proof = common::build_proof_crate("avro_proof", &dir.path().join("proof"), &["src/main.rs"], "plumbline-avro-proof");
     let nasty_rows = dir.path().join("nasty.jsonl");
     std::fs::write(&nasty_rows, nasty::nasty_jsonl(40)).unwrap();
     let deliveries = sample("deliveries.jsonl");

@@ -11,16 +11,6 @@ use std::process::Command;
 use plumbline::scan::{Coverage, Scan};
 use plumbline::types::{self, Lang, MixedChoice, Optionality, TimeChoice, TypeOptions};
 
-const LANGS: [(Lang, &str); 8] = [
-    (Lang::Scala, "scala"),
-    (Lang::SparkDdl, "spark-ddl"),
-    (Lang::Rust, "rust"),
-    (Lang::Python, "python"),
-    (Lang::Typescript, "typescript"),
-    (Lang::JsonSchema, "json-schema"),
-    (Lang::Avro, "avro"),
-    (Lang::Proto, "proto"),
-];
 
 #[test]
 fn every_readable_corpus_file_gets_types_that_hold() {
@@ -49,7 +39,8 @@ fn every_readable_corpus_file_gets_types_that_hold() {
     let protoc = std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default()).map(|d| d.join("protoc")).find(|p| p.exists());
     for (i, scan) in in_scope.iter().enumerate() {
         let path = &scan.info.path;
-        for (lang, name) in LANGS {
+        for lang in Lang::ALL {
+            let name = lang.name();
             let generated = types::generate(scan, lang, &options);
             assert!(!generated.code.is_empty(), "{}: no {name}", path.display());
             std::fs::write(out.path().join(format!("f{i}.{name}")), generated.code).unwrap();

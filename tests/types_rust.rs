@@ -6,16 +6,11 @@ mod common;
 #[path = "types/nasty.rs"]
 mod nasty;
 
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
 
 fn manifest() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
-}
-
-/// The proof crate's build folder, kept between runs (like the project's own).
-fn proof_target() -> PathBuf {
-    std::env::var_os("CARGO_TARGET_DIR").map(PathBuf::from).unwrap_or_else(|| manifest().join("target")).join("types-proof")
 }
 
 fn generate(input: &Path, extra: &[&str], out: &Path) {
@@ -30,8 +25,6 @@ fn generated_rust_compiles_and_reads_every_row() {
     let dir = tempfile::tempdir().unwrap();
     let krate = dir.path().join("proof");
     std::fs::create_dir_all(krate.join("src")).unwrap();
-    std::fs::copy(manifest().join("tests/types/rust_proof/Cargo.toml"), krate.join("Cargo.toml")).unwrap();
-    std::fs::copy(manifest().join("tests/types/rust_proof/Cargo.lock"), krate.join("Cargo.lock")).unwrap();
     let nasty_rows = dir.path().join("nasty.jsonl");
     std::fs::write(&nasty_rows, nasty::nasty_jsonl(40)).unwrap();
     let deliveries = manifest().join("sample-data/deliveries.jsonl");
@@ -63,14 +56,8 @@ fn generated_rust_compiles_and_reads_every_row() {
     );
     std::fs::write(krate.join("src/main.rs"), main).unwrap();
 
-    let build = Command::new("cargo")
-        .args(["build", "--quiet", "--locked"])
-        .current_dir(&krate)
-        .env("CARGO_TARGET_DIR", proof_target())
-        .output()
-        .expect("cargo");
-    assert!(build.status.success(), "the generated code does not compile:\n{}", String::from_utf8_lossy(&build.stderr));
-    let binary = proof_target().join("debug/plumbline-rust-proof");
+    // The generated modules and main.rs are in place; the template adds the manifest and lock.
+    let binary = common::build_proof_crate("rust_proof", &krate, &[], "plumbline-rust-proof");
     for (name, input, _) in &cases {
         let run = Command::new(&binary).args([name, input.to_str().unwrap()]).output().unwrap();
         let lines = std::fs::read_to_string(input).unwrap().lines().count();

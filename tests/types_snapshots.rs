@@ -8,16 +8,6 @@ use std::path::Path;
 
 use plumbline::types::{self, Lang, MixedChoice, Optionality, TimeChoice, TypeOptions};
 
-const LANGS: [(Lang, &str); 8] = [
-    (Lang::Scala, "scala"),
-    (Lang::SparkDdl, "spark-ddl"),
-    (Lang::Rust, "rust"),
-    (Lang::Python, "python"),
-    (Lang::Typescript, "typescript"),
-    (Lang::JsonSchema, "json-schema"),
-    (Lang::Avro, "avro"),
-    (Lang::Proto, "proto"),
-];
 
 /// The header's generation time changes every run; everything else must not.
 fn without_time(code: &str) -> String {
@@ -39,7 +29,8 @@ fn every_target_on_the_demo_data() {
         let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(file);
         let scan = common::full(&path).unwrap();
         let relative = plumbline::scan::Scan { info: plumbline::source::SourceInfo { path: Path::new("sample-data").join(file), ..scan.info.clone() }, ..scan };
-        for (lang, name) in LANGS {
+        for lang in Lang::ALL {
+            let name = lang.name();
             let options =
                 TypeOptions { root: "Delivery".into(), optional: Optionality::Observed, mixed: MixedChoice::Widest, time: TimeChoice::Sql };
             let generated = types::generate(&relative, lang, &options);

@@ -38,6 +38,17 @@ pub enum Lang {
     Proto,
 }
 
+impl Lang {
+    pub const ALL: [Lang; 8] =
+        [Lang::Scala, Lang::SparkDdl, Lang::Rust, Lang::Python, Lang::Typescript, Lang::JsonSchema, Lang::Avro, Lang::Proto];
+
+    /// The name the command line takes (`--lang spark-ddl`).
+    pub fn name(self) -> String {
+        use clap::ValueEnum;
+        self.to_possible_value().expect("every language has a name").get_name().to_string()
+    }
+}
+
 /// What to do with a field whose values are of several kinds.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default, clap::ValueEnum)]
 pub enum MixedChoice {

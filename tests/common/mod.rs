@@ -117,3 +117,25 @@ pub fn run_reference_check(script: &str, args: &[&std::ffi::OsStr], needs: &str)
         Ok(o) => panic!("{script} {args:?} failed:\n{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr)),
     }
 }
+
+/// Copies the throwaway crate under `tests/types/<template>` (Cargo.toml,
+/// Cargo.lock and any `extra` files already written into `into`), builds it
+/// with locked dependencies in `$CARGO_TARGET_DIR/types-proof` (kept between
+/// runs), and returns the built binary `name`. A build failure fails the
+/// test with cargo's own words.
+pub fn build_proof_crate(template: &str, into: &Path, files: &[&str], name: &str) -> PathBuf {
+    let manifest = Path::new(env!("CARGO_MANIFEST_DIR"));
+    std::fs::create_dir_all(into.join("src")).unwrap();
+    for file in ["Cargo.toml", "Cargo.lock"].iter().chain(files) {
+        std::fs::copy(manifest.join("tests/types").join(template).join(file), into.join(file)).unwrap();
+    }
+    let target = std::env::var_os("CARGO_TARGET_DIR").map(PathBuf::from).unwrap_or_else(|| manifest.join("target")).join("types-proof");
+    let build = std::process::Command::new("cargo")
+        .args(["build", "--quiet", "--locked"])
+        .current_dir(into)
+        .env("CARGO_TARGET_DIR", &target)
+        .output()
+        .expect("cargo");
+    assert!(build.status.success(), "{template} does not build:\n{}", String::from_utf8_lossy(&build.stderr));
+    target.join("debug").join(name)
+}

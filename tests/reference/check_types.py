@@ -77,24 +77,45 @@ def python_module(module_path, rows_path, root):
     print(count)
 
 
-def json_schema(schema_path, rows_path):
+def needs(*modules):
+    """Imports the modules, or exits 3 (a needed package is missing)."""
+    import importlib
+
     try:
-        import jsonschema
-        import rfc3339_validator  # noqa: F401 (enables the date-time format check)
+        return [importlib.import_module(m) for m in modules]
     except ImportError as e:
         print(e, file=sys.stderr)
         sys.exit(3)
+
+
+def validator_for(schema_path):
+    """A draft 2020-12 validator with format checks (rfc3339-validator makes
+    `date-time` checked); the schema itself is checked against the metaschema."""
+    jsonschema, _ = needs("jsonschema", "rfc3339_validator")
     with open(schema_path, encoding="utf-8") as f:
         schema = json.load(f)
     jsonschema.Draft202012Validator.check_schema(schema)
-    validator = jsonschema.Draft202012Validator(schema, format_checker=jsonschema.Draft202012Validator.FORMAT_CHECKER)
-    count = 0
-    for number, row in rows(rows_path):
+    return jsonschema.Draft202012Validator(schema, format_checker=jsonschema.Draft202012Validator.FORMAT_CHECKER)
+
+
+def first_error(validator, numbered_rows):
+    """`line N: path: message` of the first row that does not validate."""
+    import jsonschema
+
+    for number, row in numbered_rows:
         error = jsonschema.exceptions.best_match(validator.iter_errors(row))
         if error is not None:
-            sys.exit(f"line {number}: {error.json_path}: {error.message}")
-        count += 1
-    print(count)
+            return f"line {number}: {error.json_path}: {error.message}"
+    return None
+
+
+def json_schema(schema_path, rows_path):
+    validator = validator_for(schema_path)
+    all_rows = list(rows(rows_path))
+    error = first_error(validator, all_rows)
+    if error:
+        sys.exit(error)
+    print(len(all_rows))
 
 
 def plain(value, arrow_type):
@@ -154,52 +175,34 @@ def parquet_json_rows(path):
 
 
 def parquet_rows(parquet_path, out_path):
-    try:
-        import pyarrow.parquet  # noqa: F401
-    except ImportError as e:
-        print(e, file=sys.stderr)
-        sys.exit(3)
+    needs("pyarrow")
     with open(out_path, "w", encoding="utf-8") as out:
         for record in parquet_json_rows(parquet_path):
             out.write(json.dumps(record, ensure_ascii=False) + "\n")
 
 
 def corpus_json_schema(manifest_path):
-    """Validates each Parquet file's rows (as pyarrow reads them) against its
-    generated schema. Prints {parquet: {"rows": n} | {"skipped": why} |
+    """Validates each file's rows (as pyarrow reads them) against its
+    generated schema. Prints {file: {"rows": n} | {"skipped": why} |
     {"error": what}}; files pyarrow cannot turn into Python values are
     skipped with pyarrow's reason."""
-    try:
-        import jsonschema
-        import pyarrow  # noqa: F401
-        import rfc3339_validator  # noqa: F401
-    except ImportError as e:
-        print(e, file=sys.stderr)
-        sys.exit(3)
+    jsonschema, _ = needs("jsonschema", "pyarrow")
     with open(manifest_path, encoding="utf-8") as f:
         manifest = json.load(f)
     results = {}
     for entry in manifest:
         try:
-            rows = parquet_json_rows(entry["parquet"])
+            table_rows = parquet_json_rows(entry["parquet"])
         except Exception as e:  # pyarrow's own limits, reported per file
             results[entry["parquet"]] = {"skipped": f"{type(e).__name__}: {e}"}
             continue
-        with open(entry["schema"], encoding="utf-8") as f:
-            schema = json.load(f)
         try:
-            jsonschema.Draft202012Validator.check_schema(schema)
+            validator = validator_for(entry["schema"])
         except jsonschema.exceptions.SchemaError as e:
             results[entry["parquet"]] = {"error": f"invalid schema: {e.message}"}
             continue
-        validator = jsonschema.Draft202012Validator(schema, format_checker=jsonschema.Draft202012Validator.FORMAT_CHECKER)
-        result = {"rows": len(rows)}
-        for number, row in enumerate(rows):
-            error = jsonschema.exceptions.best_match(validator.iter_errors(row))
-            if error is not None:
-                result = {"error": f"row {number}: {error.json_path}: {error.message}"}
-                break
-        results[entry["parquet"]] = result
+        error = first_error(validator, enumerate(table_rows, 1))
+        results[entry["parquet"]] = {"error": error} if error else {"rows": len(table_rows)}
     print(json.dumps(results))
 
 
