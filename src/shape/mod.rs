@@ -384,26 +384,26 @@ impl ShapeBuilder {
         self.root.appeared += n;
     }
 
-    /// Each worker parses its share of the records, then (once the first
-    /// bad record, if any, is known) observes the rows before it. Workers
-    /// keep their accumulators across batches, so nothing is merged per
-    /// batch; a chunk-per-batch design spent a fifth of its time merging,
-    /// on one core.
+    /// The records are cut into a few chunks per thread. Each chunk is
+    /// parsed in parallel; once the first bad record, if any, is known, the
+    /// rows before it are observed in parallel, each chunk by whichever
+    /// worker builder is free. Workers keep their accumulators across
+    /// batches, so nothing is merged per batch (a chunk-per-batch design
+    /// spent a fifth of its time merging, on one core), and small chunks let
+    /// a thread that finishes early take more.
     fn add_json(&mut self, records: &RawRecords) -> Result<(), SourceError> {
         use rayon::prelude::*;
 
         let profile = self.root.stats.is_some();
-        if self.workers.is_empty() {
-            self.workers = (0..rayon::current_num_threads().max(1)).map(|_| ShapeBuilder::empty(profile)).collect();
-        }
         let len = records.len();
-        let share = len.div_ceil(self.workers.len()).max(1);
-        let range = |w: usize| (w * share).min(len)..((w + 1) * share).min(len);
-        let parsed: Vec<(Vec<crate::value::Value>, Option<(usize, SourceError)>)> = (0..self.workers.len())
+        let chunks = (4 * rayon::current_num_threads()).max(1);
+        let share = len.div_ceil(chunks).max(1);
+        let range = |c: usize| (c * share).min(len)..((c + 1) * share).min(len);
+        let parsed: Vec<(Vec<crate::value::Value>, Option<(usize, SourceError)>)> = (0..chunks)
             .into_par_iter()
-            .map(|w| {
-                let mut rows = Vec::with_capacity(range(w).len());
-                for i in range(w) {
+            .map(|c| {
+                let mut rows = Vec::with_capacity(range(c).len());
+                for i in range(c) {
                     match records.row(i) {
                         Ok(row) => rows.push(row),
                         Err(e) => return (rows, Some((i, e))),
@@ -412,16 +412,24 @@ impl ShapeBuilder {
                 (rows, None)
             })
             .collect();
-        // Shares are in order, so the first error found is the earliest.
+        // Chunks are in order, so the first error found is the earliest.
         let cut = parsed.iter().find_map(|(_, e)| e.as_ref().map(|(i, _)| *i)).unwrap_or(len);
         let first_row = self.rows;
-        self.workers.par_iter_mut().zip(parsed.par_iter()).enumerate().for_each(|(w, (worker, (rows, _)))| {
-            let start = range(w).start;
+        let pool = std::sync::Mutex::new(std::mem::take(&mut self.workers));
+        parsed.par_iter().enumerate().for_each(|(c, (rows, _))| {
+            let start = range(c).start;
             let keep = cut.saturating_sub(start).min(rows.len());
+            if keep == 0 {
+                return;
+            }
+            let taken = pool.lock().expect("no worker panics holding the pool").pop();
+            let mut worker = taken.unwrap_or_else(|| ShapeBuilder::empty(profile));
             from_values::observe_rows(&mut worker.root, &rows[..keep], first_row + start as u64);
             worker.count_rows(keep as u64);
             worker.enforce_budget();
+            pool.lock().expect("no worker panics holding the pool").push(worker);
         });
+        self.workers = pool.into_inner().expect("the pool is not poisoned");
         self.rows += cut as u64;
         parsed.into_iter().find_map(|(_, e)| e.map(|(_, e)| e)).map_or(Ok(()), Err)
     }
