@@ -2,23 +2,12 @@
 //! (Debian `protobuf-compiler`, installed by `.ci/run`): protoc compiles the
 //! generated proto3 file, warnings treated as failures.
 
+mod common;
 #[path = "types/nasty.rs"]
 mod nasty;
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
-
-fn protoc() -> Option<PathBuf> {
-    let found = std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default()).map(|d| d.join("protoc")).find(|p| p.exists());
-    if found.is_none() {
-        let message = "REFERENCE CHECK NOT RUN: protoc is not installed (`.ci/run` installs Debian's protobuf-compiler)";
-        if std::env::var("CI").is_ok_and(|v| v == "true") {
-            panic!("{message}");
-        }
-        eprintln!("\n*** {message} ***\n");
-    }
-    found
-}
 
 fn sample(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
@@ -26,7 +15,7 @@ fn sample(name: &str) -> PathBuf {
 
 #[test]
 fn protoc_compiles_the_generated_proto() {
-    let Some(protoc) = protoc() else { return };
+    let Some(protoc) = common::tool_on_path("protoc", "`.ci/run` installs Debian's protobuf-compiler") else { return };
     let dir = tempfile::tempdir().unwrap();
     let nasty_rows = dir.path().join("nasty.jsonl");
     std::fs::write(&nasty_rows, nasty::nasty_jsonl(20)).unwrap();

@@ -4,23 +4,12 @@
 //! Describe.scala) spells the same field names, types, nesting and
 //! nullability as the Spark DDL generated for the same shape.
 
+mod common;
 #[path = "types/nasty.rs"]
 mod nasty;
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
-
-fn tool(name: &str) -> Option<PathBuf> {
-    let found = std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default()).map(|d| d.join(name)).find(|p| p.exists());
-    if found.is_none() {
-        let message = format!("REFERENCE CHECK NOT RUN: {name} is not installed (`.ci/run` installs Debian's scala)");
-        if std::env::var("CI").is_ok_and(|v| v == "true") {
-            panic!("{message}");
-        }
-        eprintln!("\n*** {message} ***\n");
-    }
-    found
-}
 
 /// The folder of the Scala jars beside the `scala` launcher (Debian:
 /// /usr/share/scala-2.11/lib, reached through /usr/bin/scala's link).
@@ -62,7 +51,10 @@ fn comparable(ddl: &str) -> String {
 
 #[test]
 fn scalac_compiles_the_case_classes_and_they_match_the_spark_ddl() {
-    let (Some(scalac), Some(scala)) = (tool("scalac"), tool("scala")) else { return };
+    let installed_by = "`.ci/run` installs Debian's scala";
+    let (Some(scalac), Some(scala)) = (common::tool_on_path("scalac", installed_by), common::tool_on_path("scala", installed_by)) else {
+        return;
+    };
     let dir = tempfile::tempdir().unwrap();
     let nasty_rows = dir.path().join("nasty.jsonl");
     std::fs::write(&nasty_rows, nasty::nasty_jsonl(20)).unwrap();

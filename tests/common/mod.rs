@@ -83,12 +83,7 @@ pub fn run_reference_script(script: &str, args: &[&std::ffi::OsStr], needs: &str
                 Ok(o) => String::from_utf8_lossy(&o.stderr).into_owned(),
                 Err(e) => e.to_string(),
             };
-            let message = format!("REFERENCE CHECK NOT RUN: python3 with {needs} is needed ({})", why.trim());
-            if std::env::var("CI").is_ok_and(|v| v == "true") {
-                panic!("{message}");
-            }
-            eprintln!("\n*** {message} ***\n");
-            None
+            not_run(&format!("python3 with {needs} is needed ({})", why.trim()))
         }
     }
 }
@@ -102,14 +97,7 @@ pub const PACKAGE_MISSING: i32 = 3;
 /// loudly and returns `None` — or fails under CI (`CI=true`).
 pub fn run_reference_check(script: &str, args: &[&std::ffi::OsStr], needs: &str) -> Option<String> {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/reference").join(script);
-    let not_run = |why: String| {
-        let message = format!("REFERENCE CHECK NOT RUN: python3 with {needs} is needed ({})", why.trim());
-        if std::env::var("CI").is_ok_and(|v| v == "true") {
-            panic!("{message}");
-        }
-        eprintln!("\n*** {message} ***\n");
-        None
-    };
+    let not_run = |why: String| not_run(&format!("python3 with {needs} is needed ({})", why.trim()));
     match std::process::Command::new("python3").arg(&path).args(args).output() {
         Err(e) => not_run(e.to_string()),
         Ok(o) if o.status.code() == Some(PACKAGE_MISSING) => not_run(String::from_utf8_lossy(&o.stderr).into_owned()),
@@ -138,4 +126,24 @@ pub fn build_proof_crate(template: &str, into: &Path, files: &[&str], name: &str
         .expect("cargo");
     assert!(build.status.success(), "{template} does not build:\n{}", String::from_utf8_lossy(&build.stderr));
     target.join("debug").join(name)
+}
+
+/// Says loudly that a check against an outside tool did not run, and
+/// returns `None` — or fails under CI (`CI=true`), where every tool is
+/// installed by `.ci/run`.
+pub fn not_run<T>(message: &str) -> Option<T> {
+    let message = format!("REFERENCE CHECK NOT RUN: {message}");
+    if std::env::var("CI").is_ok_and(|v| v == "true") {
+        panic!("{message}");
+    }
+    eprintln!("\n*** {message} ***\n");
+    None
+}
+
+/// A program on PATH, or [`not_run`] naming what installs it.
+pub fn tool_on_path(name: &str, installed_by: &str) -> Option<PathBuf> {
+    std::env::split_paths(&std::env::var_os("PATH").unwrap_or_default())
+        .map(|d| d.join(name))
+        .find(|p| p.exists())
+        .or_else(|| not_run(&format!("{name} is not installed ({installed_by})")))
 }
