@@ -69,7 +69,7 @@ impl Renderer<'_> {
             }
             fields.push(Value::Object(entry));
         }
-        let what = if record.path.is_empty() { "one row".to_string() } else { record.path.clone() };
+        let what = record.what(false);
         json!({"type": "record", "name": record.name, "namespace": NAMESPACE, "doc": what, "fields": fields})
     }
 

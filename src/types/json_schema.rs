@@ -43,7 +43,7 @@ fn record_schema(model: &Model, index: usize, warnings: &mut Vec<String>) -> Val
             required.push(json!(field.name));
         }
     }
-    let what = if record.path.is_empty() { "one row".to_string() } else { record.path.clone() };
+    let what = record.what(false);
     json!({"description": what, "type": "object", "properties": properties, "required": required})
 }
 

@@ -98,6 +98,18 @@ pub struct Record {
     pub fields: Vec<Field>,
 }
 
+impl Record {
+    /// What one value of the record is, for a comment: `one row` for the
+    /// root, else its path (in backticks when `code`).
+    pub fn what(&self, code: bool) -> String {
+        match (self.path.is_empty(), code) {
+            (true, _) => "one row".into(),
+            (false, true) => format!("`{}`", self.path),
+            (false, false) => self.path.clone(),
+        }
+    }
+}
+
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Model {
     /// Nested records first, each before any record that uses it; the

@@ -59,7 +59,7 @@ struct Renderer<'a> {
 
 impl Renderer<'_> {
     fn message(&mut self, record: &super::model::Record, out: &mut String) {
-        let what = if record.path.is_empty() { "One row.".to_string() } else { format!("`{}`.", record.path) };
+        let what = record.what(true);
         let _ = write!(out, "\n// {what}\nmessage {} {{\n", record.name);
         let mut scope = Scope::default();
         let mut number = 1u32;
@@ -160,7 +160,7 @@ impl Renderer<'_> {
 
     fn element_type(&mut self, ty: &Ty, path: &str) -> String {
         match ty {
-            Ty::Scalar(s) => self.scalar(s, path).to_string(),
+            Ty::Scalar(s) => Self::scalar(s).to_string(),
             Ty::Record(i) => self.model.records[*i].name.clone(),
             Ty::Any { .. } | Ty::Mixed(..) => "google.protobuf.Value".into(),
             Ty::List(_) | Ty::Map { .. } => {
@@ -170,7 +170,7 @@ impl Renderer<'_> {
         }
     }
 
-    fn scalar(&mut self, s: &Scalar, _path: &str) -> &'static str {
+    fn scalar(s: &Scalar) -> &'static str {
         match s {
             Scalar::Bool => "bool",
             Scalar::Int { bits: 64, signed: true } => "int64",

@@ -45,7 +45,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
 }
 
 fn render_record(model: &Model, record: &Record, options: &TypeOptions, out: &mut String, warnings: &mut Vec<String>) {
-    let what = if record.path.is_empty() { "One row.".to_string() } else { format!("`{}`.", record.path) };
+    let what = record.what(true);
     let _ = write!(out, "\n\n@dataclasses.dataclass(kw_only=True)\nclass {}:\n    \"\"\"{what}\"\"\"\n\n", record.name);
     let mut scope = Scope::default();
     OWN_NAMES.iter().for_each(|n| {

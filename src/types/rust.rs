@@ -63,7 +63,7 @@ struct Renderer<'a> {
 
 impl Renderer<'_> {
     fn record(&mut self, record: &super::model::Record) {
-        let what = if record.path.is_empty() { "one row".to_string() } else { format!("`{}`", record.path) };
+        let what = record.what(true);
         let _ = write!(self.out, "\n/// {what}\n#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]\npub struct {} {{\n", record.name);
         let mut scope = Scope::default();
         for field in &record.fields {

@@ -49,7 +49,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
 }
 
 fn render_record(model: &Model, record: &Record, options: &TypeOptions, out: &mut String, warnings: &mut Vec<String>) {
-    let what = if record.path.is_empty() { "one row".to_string() } else { format!("`{}`", record.path) };
+    let what = record.what(true);
     let _ = write!(out, "\n/** {what} */\ncase class {}(\n", record.name);
     let fields: &[Field] = if record.fields.len() > MAX_FIELDS {
         warnings.push(format!(

@@ -39,11 +39,11 @@ pub fn quote(name: &str) -> String {
 fn ty(model: &Model, of: &Ty, path: &str, warnings: &mut Vec<String>) -> String {
     match of {
         Ty::Scalar(s) => scalar(s, path, warnings),
-        Ty::List(e) => format!("ARRAY<{}>", ty_of(model, e, &crate::path::element(path), warnings)),
+        Ty::List(e) => format!("ARRAY<{}>", ty(model, &e.ty, &crate::path::element(path), warnings)),
         Ty::Map { key, value } => format!(
             "MAP<{}, {}>",
-            ty_of(model, key, &crate::path::map_key(path), warnings),
-            ty_of(model, value, &crate::path::map_value(path), warnings)
+            ty(model, &key.ty, &crate::path::map_key(path), warnings),
+            ty(model, &value.ty, &crate::path::map_value(path), warnings)
         ),
         Ty::Record(i) => {
             let record = &model.records[*i];
@@ -63,10 +63,6 @@ fn ty(model: &Model, of: &Ty, path: &str, warnings: &mut Vec<String>) -> String 
         }
         Ty::Any { .. } | Ty::Mixed(..) => "STRING".into(),
     }
-}
-
-fn ty_of(model: &Model, slot: &Slot, path: &str, warnings: &mut Vec<String>) -> String {
-    ty(model, &slot.ty, path, warnings)
 }
 
 fn scalar(s: &Scalar, path: &str, warnings: &mut Vec<String>) -> String {

@@ -25,7 +25,7 @@ pub fn render(mut model: Model, header: &Header, options: &TypeOptions) -> Gener
     out.push_str("//\n// `?`: the key may be missing. `| null`: the value may be null.\n");
     let mut warnings = Vec::new();
     for record in &model.records {
-        let what = if record.path.is_empty() { "One row.".to_string() } else { format!("`{}`.", record.path) };
+        let what = record.what(true);
         let _ = write!(out, "\n/** {what} */\nexport interface {} {{\n", record.name);
         for field in &record.fields {
             let path = crate::path::member(&record.path, &field.name);
