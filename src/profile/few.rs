@@ -34,8 +34,17 @@ impl Hasher for MixBits {
     }
 }
 
+/// Whole numbers below this are counted in a plain table, without hashing
+/// (lengths of text and lists, small codes: the common few-valued streams).
+const SMALL: usize = 256;
+
 #[derive(Debug, Clone, Default)]
 pub struct FewValues {
+    /// Counts of the whole numbers 0..SMALL, by value (empty until one is seen).
+    small: Vec<u64>,
+    /// How many entries of `small` are not zero.
+    small_distinct: usize,
+    /// Counts of every other value, by its bits.
     counts: HashMap<u64, u64, BuildHasherDefault<MixBits>>,
     total: u64,
 }
@@ -44,28 +53,38 @@ impl FewValues {
     /// Counts a finite value; false once more than `limit` distinct values
     /// have been seen (the caller then moves them to the sketch).
     pub fn add(&mut self, x: f64, limit: usize) -> bool {
-        // -0.0 and 0.0 are one value.
-        *self.counts.entry((x + 0.0).to_bits()).or_insert(0) += 1;
-        self.total += 1;
-        self.counts.len() <= limit
+        self.add_count(x, 1);
+        self.distinct() <= limit
+    }
+
+    fn add_count(&mut self, x: f64, count: u64) {
+        self.total += count;
+        // -0.0 and 0.0 are one value (both land on slot 0).
+        if (0.0..SMALL as f64).contains(&x) && x.fract() == 0.0 {
+            if self.small.is_empty() {
+                self.small = vec![0; SMALL];
+            }
+            let slot = &mut self.small[x as usize];
+            self.small_distinct += (*slot == 0) as usize;
+            *slot += count;
+        } else {
+            *self.counts.entry((x + 0.0).to_bits()).or_insert(0) += count;
+        }
     }
 
     pub fn merge(&mut self, other: &FewValues, limit: usize) -> bool {
-        for (bits, c) in &other.counts {
-            *self.counts.entry(*bits).or_insert(0) += c;
-        }
-        self.total += other.total;
-        self.counts.len() <= limit
+        other.pairs().for_each(|(v, c)| self.add_count(v, c));
+        self.distinct() <= limit
     }
 
     /// Distinct values counted.
     pub fn distinct(&self) -> usize {
-        self.counts.len()
+        self.small_distinct + self.counts.len()
     }
 
     /// (value, count) pairs, ascending.
     pub fn sorted(&self) -> Vec<(f64, u64)> {
-        let mut pairs: Vec<(f64, u64)> = self.counts.iter().map(|(b, c)| (f64::from_bits(*b), *c)).collect();
+        let mut pairs: Vec<(f64, u64)> = self.pairs().collect();
         pairs.sort_by(|a, b| a.0.total_cmp(&b.0));
         pairs
     }
@@ -112,12 +131,13 @@ impl FewValues {
 
     /// How many values satisfy `keep`.
     pub fn count_where(&self, keep: impl Fn(f64) -> bool) -> u64 {
-        self.counts.iter().filter(|(b, _)| keep(f64::from_bits(**b))).map(|(_, c)| c).sum()
+        self.pairs().filter(|(v, _)| keep(*v)).map(|(_, c)| c).sum()
     }
 
     /// Each value with its count, in no particular order.
     pub fn pairs(&self) -> impl Iterator<Item = (f64, u64)> + '_ {
-        self.counts.iter().map(|(b, c)| (f64::from_bits(*b), *c))
+        let small = self.small.iter().enumerate().filter(|(_, c)| **c > 0).map(|(v, c)| (v as f64, *c));
+        small.chain(self.counts.iter().map(|(b, c)| (f64::from_bits(*b), *c)))
     }
 }
 
@@ -136,6 +156,19 @@ mod tests {
         let edges = [0.0, 3.0, 6.0, 12.0];
         assert_eq!(few.histogram_counts(&edges), crate::profile::histogram::counts(&values, &edges));
         assert!(!few.add(1000.5, 13), "a 14th distinct value passes a limit of 13");
+    }
+
+    #[test]
+    fn small_whole_numbers_and_other_values_count_alike() {
+        // Both sides of the plain table's edge, fractions, negatives, merged.
+        let values = [0.0, 1.0, 255.0, 256.0, 255.5, -1.0, 3.0, 3.0, 256.0, 0.0];
+        let (mut a, mut b) = (FewValues::default(), FewValues::default());
+        values[..5].iter().for_each(|&v| assert!(a.add(v, 100)));
+        values[5..].iter().for_each(|&v| assert!(b.add(v, 100)));
+        assert!(a.merge(&b, 100));
+        assert_eq!(a.sorted(), vec![(-1.0, 1), (0.0, 2), (1.0, 1), (3.0, 2), (255.0, 1), (255.5, 1), (256.0, 2)]);
+        assert_eq!(a.distinct(), 7);
+        assert!(!a.merge(&b, 6), "7 distinct values pass a limit of 6");
     }
 
     #[test]

@@ -124,6 +124,35 @@ impl FieldStats {
         self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).add(x);
     }
 
+    /// A run of numbers (an Arrow array's present values).
+    pub fn add_numbers(&mut self, xs: &[f64]) {
+        if xs.is_empty() {
+            return;
+        }
+        let limit = self.budget.sample;
+        self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).add_slice(xs);
+    }
+
+    /// A run of instants, in epoch seconds.
+    pub fn add_instants(&mut self, secs: &[i64]) {
+        let (Some(&lo), Some(&hi)) = (secs.iter().min(), secs.iter().max()) else { return };
+        let now = profile_started();
+        let limit = self.budget.sample;
+        let i = self.instants.get_or_insert_with(|| Instants {
+            min: lo,
+            max: hi,
+            count: 0,
+            future: 0,
+            seconds: NumberStats::with_limit(limit),
+        });
+        i.min = i.min.min(lo);
+        i.max = i.max.max(hi);
+        i.count += secs.len() as u64;
+        i.future += secs.iter().filter(|&&s| s > now).count() as u64;
+        let as_f64: Vec<f64> = secs.iter().map(|&s| s as f64).collect();
+        i.seconds.add_slice(&as_f64);
+    }
+
     pub fn merge(&mut self, other: &FieldStats) {
         match (&mut self.numbers, &other.numbers) {
             (Some(mine), Some(theirs)) => mine.merge(theirs),

@@ -25,9 +25,21 @@ pub const RANK_ERROR: f64 = 0.01;
 /// a larger bottom buffer only lowers the error.
 pub const BOTTOM_MIN: usize = 256;
 
+/// An f64 as an i64 that orders like `f64::total_cmp`: levels hold these,
+/// because sorting plain integers is about twice as fast as sorting floats
+/// by `total_cmp` (the bottom-level sort is the sketch's main cost).
+fn key(x: f64) -> i64 {
+    let bits = x.to_bits() as i64;
+    bits ^ (((bits >> 63) as u64) >> 1) as i64
+}
+
+fn value(key: i64) -> f64 {
+    f64::from_bits((key ^ (((key >> 63) as u64) >> 1) as i64) as u64)
+}
+
 #[derive(Debug, Clone)]
 pub struct Kll {
-    levels: Vec<Vec<f64>>,
+    levels: Vec<Vec<i64>>,
     /// Capacity of each level, recomputed when a level is added (computing
     /// it per value was a tenth of a whole profile's time).
     capacities: Vec<usize>,
@@ -53,12 +65,33 @@ impl Default for Kll {
 impl Kll {
     pub fn add(&mut self, x: f64) {
         debug_assert!(!x.is_nan());
-        self.levels[0].push(x);
+        self.levels[0].push(key(x));
         self.count += 1;
         self.min = self.min.min(x);
         self.max = self.max.max(x);
         if self.levels[0].len() >= self.capacity(0) {
             self.compress();
+        }
+    }
+
+    /// Adds every value of `xs` (none NaN), filling the bottom level a run
+    /// at a time: the same sketch as adding them one by one.
+    pub fn add_slice(&mut self, xs: &[f64]) {
+        let mut rest = xs;
+        while !rest.is_empty() {
+            let room = self.capacity(0).saturating_sub(self.levels[0].len()).max(1);
+            let (run, after) = rest.split_at(room.min(rest.len()));
+            self.levels[0].extend(run.iter().map(|&x| key(x)));
+            for &x in run {
+                debug_assert!(!x.is_nan());
+                self.min = self.min.min(x);
+                self.max = self.max.max(x);
+            }
+            self.count += run.len() as u64;
+            if self.levels[0].len() >= self.capacity(0) {
+                self.compress();
+            }
+            rest = after;
         }
     }
 
@@ -78,7 +111,7 @@ impl Kll {
                 while self.levels.len() <= level {
                     self.push_level();
                 }
-                self.levels[level].push(x);
+                self.levels[level].push(key(x));
             }
             rest >>= 1;
             level += 1;
@@ -124,7 +157,7 @@ impl Kll {
                 // The bottom level arrives in stream order; higher levels are
                 // a few sorted runs, which the run-adaptive stable sort merges
                 // in linear time.
-                if level == 0 { items.sort_unstable_by(f64::total_cmp) } else { items.sort_by(f64::total_cmp) }
+                if level == 0 { items.sort_unstable() } else { items.sort() }
                 // An odd value out stays behind, so the weights add up exactly.
                 let stay = if items.len() % 2 == 1 { items.pop() } else { None };
                 self.levels[level + 1].extend(items.iter().skip(offset).step_by(2));
@@ -167,17 +200,17 @@ impl Kll {
         if p == 1.0 {
             return Some(self.max);
         }
-        let mut weighted: Vec<(f64, u64)> = Vec::new();
+        let mut weighted: Vec<(i64, u64)> = Vec::new();
         for (level, items) in self.levels.iter().enumerate() {
-            weighted.extend(items.iter().map(|&v| (v, 1u64 << level)));
+            weighted.extend(items.iter().map(|&k| (k, 1u64 << level)));
         }
-        weighted.sort_by(|a, b| a.0.total_cmp(&b.0));
+        weighted.sort_unstable();
         let target = p * self.count as f64;
         let mut seen = 0u64;
-        for (v, w) in weighted {
+        for (k, w) in weighted {
             seen += w;
             if seen as f64 >= target {
-                return Some(v);
+                return Some(value(k));
             }
         }
         Some(self.max)
@@ -188,11 +221,13 @@ impl Kll {
         if self.count == 0 {
             return 0.0;
         }
+        // Keys order like total_cmp, which puts -0.0 below 0.0; `<=` on
+        // values counts them as one.
         let at_most: u64 = self
             .levels
             .iter()
             .enumerate()
-            .map(|(level, items)| items.iter().filter(|&&v| v <= x).count() as u64 * (1u64 << level))
+            .map(|(level, items)| items.iter().filter(|&&k| value(k) <= x).count() as u64 * (1u64 << level))
             .sum();
         at_most as f64 / self.count as f64
     }
@@ -260,6 +295,26 @@ mod tests {
             }
             assert_eq!(sketch.quantile(0.0), Some(sorted[0]));
             assert_eq!(sketch.quantile(1.0), Some(*sorted.last().unwrap()));
+        }
+    }
+
+    #[test]
+    fn keys_order_like_total_cmp_and_give_the_value_back() {
+        let values = [-f64::INFINITY, -1e300, -2.5, -0.0, 0.0, 1e-310, 3.0, 1e300, f64::INFINITY];
+        let keys: Vec<i64> = values.iter().map(|&x| key(x)).collect();
+        assert!(keys.windows(2).all(|w| w[0] < w[1]), "{keys:?}");
+        values.iter().zip(&keys).for_each(|(&x, &k)| assert_eq!(value(k).to_bits(), x.to_bits()));
+    }
+
+    #[test]
+    fn a_slice_at_a_time_gives_the_same_sketch_as_one_value_at_a_time() {
+        for (name, values) in adversarial_orders(50_000) {
+            let mut single = Kll::default();
+            values.iter().for_each(|&v| single.add(v));
+            let mut sliced = Kll::default();
+            values.chunks(1_000).for_each(|c| sliced.add_slice(c));
+            assert_eq!(single.levels, sliced.levels, "{name}");
+            assert_eq!((single.count, single.min, single.max), (sliced.count, sliced.min, sliced.max), "{name}");
         }
     }
 

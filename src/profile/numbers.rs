@@ -113,6 +113,35 @@ impl NumberStats {
         }
     }
 
+    /// Adds a run of values; the same statistics as adding them one at a time.
+    pub fn add_slice(&mut self, xs: &[f64]) {
+        if !xs.iter().all(|x| x.is_finite()) {
+            xs.iter().for_each(|&x| self.add(x));
+            return;
+        }
+        self.moments.add_slice(xs);
+        let few_limit = self.few_limit();
+        let for_sketch = match &mut self.few {
+            Some(few) => match xs.iter().position(|&x| !few.add(x, few_limit)) {
+                Some(last_counted) => {
+                    self.spill_few();
+                    &xs[last_counted + 1..]
+                }
+                None => &[],
+            },
+            None => xs,
+        };
+        self.sketch.add_slice(for_sketch);
+        self.fractional = self.fractional || xs.iter().any(|x| x.fract() != 0.0);
+        if let Some(values) = &mut self.exact {
+            if values.len() + xs.len() <= self.exact_limit {
+                values.extend_from_slice(xs);
+            } else {
+                self.exact = None;
+            }
+        }
+    }
+
     pub fn merge(&mut self, other: &NumberStats) {
         self.moments.merge(&other.moments);
         self.sketch.merge(&other.sketch);
@@ -286,6 +315,36 @@ mod tests {
         assert_eq!((below, above), (0, 1));
     }
 
+
+    #[test]
+    fn runs_give_the_statistics_of_one_value_at_a_time() {
+        // Few values, a spill part-way through a run, the sketch, and a run
+        // holding NaN and infinity.
+        let mut state = 3u64;
+        let mut values: Vec<f64> = (0..40_000)
+            .map(|i| {
+                state = state.wrapping_mul(6364136223846793005).wrapping_add(1442695040888963407);
+                if i < 3_000 { (i % 10) as f64 } else { (state >> 40) as f64 / 7.0 }
+            })
+            .collect();
+        values[35_000] = f64::NAN;
+        values[35_001] = f64::NEG_INFINITY;
+        let mut single = NumberStats::new();
+        values.iter().for_each(|&v| single.add(v));
+        let mut runs = NumberStats::new();
+        values.chunks(777).for_each(|c| runs.add_slice(c));
+        assert_eq!((runs.nan, runs.neg_inf, runs.moments.count()), (single.nan, single.neg_inf, single.moments.count()));
+        assert_eq!(runs.quantiles(), single.quantiles());
+        assert_eq!(runs.histogram(), single.histogram());
+        assert_eq!((runs.moments.min(), runs.moments.max()), (single.moments.min(), single.moments.max()));
+        let (a, b) = (runs.moments.mean().unwrap(), single.moments.mean().unwrap());
+        assert!((a - b).abs() <= 1e-12 * b.abs(), "{a} vs {b}");
+        let (a, b) = (runs.moments.std().unwrap(), single.moments.std().unwrap());
+        assert!((a - b).abs() <= 1e-12 * b.abs(), "{a} vs {b}");
+        let mut small = NumberStats::new();
+        small.add_slice(&values[..5_000]);
+        assert!(small.quantiles().unwrap().exact);
+    }
 
     #[test]
     fn few_distinct_values_stay_exact_at_any_count() {

@@ -5,6 +5,10 @@
 //! that is kept.
 
 use std::collections::HashMap;
+use std::collections::hash_map::Entry;
+use std::sync::Arc;
+
+use arrow_schema::DataType;
 
 use super::distinct::PassThrough;
 
@@ -23,6 +27,9 @@ pub enum Kept {
     Int(i128),
     Float(f64),
     Text(String),
+    /// A fixed-width Arrow value (decimal, timestamp, date, time, duration)
+    /// by its raw integer, shown as Arrow displays its type.
+    Raw { raw: i128, shown_as: Arc<DataType> },
 }
 
 impl Kept {
@@ -31,8 +38,57 @@ impl Kept {
             Kept::Int(v) => v.to_string(),
             Kept::Float(v) => v.to_string(),
             Kept::Text(s) => s.clone(),
+            Kept::Raw { raw, shown_as } => render_raw(*raw, shown_as),
         }
     }
+}
+
+/// Arrow's display of one raw value of a fixed-width type (the raw integer
+/// itself for a type Arrow cannot rebuild from it).
+fn render_raw(raw: i128, data_type: &DataType) -> String {
+    use arrow_array::types::*;
+    use arrow_array::{ArrowPrimitiveType, PrimitiveArray};
+    use arrow_schema::{IntervalUnit, TimeUnit};
+
+    fn show<T: ArrowPrimitiveType>(v: Option<T::Native>, data_type: &DataType) -> Option<String> {
+        use arrow_cast::display::{ArrayFormatter, FormatOptions};
+        let array = PrimitiveArray::<T>::new(vec![v?].into(), None).with_data_type(data_type.clone());
+        // Not "safe": a value out of range is an error here, not text saying so.
+        let options = FormatOptions::new().with_display_error(false);
+        ArrayFormatter::try_new(&array, &options).ok()?.value(0).try_to_string().ok()
+    }
+    let shown = match data_type {
+        DataType::Decimal32(..) => show::<Decimal32Type>(i32::try_from(raw).ok(), data_type),
+        DataType::Decimal64(..) => show::<Decimal64Type>(i64::try_from(raw).ok(), data_type),
+        DataType::Decimal128(..) => show::<Decimal128Type>(Some(raw), data_type),
+        DataType::Date32 => show::<Date32Type>(i32::try_from(raw).ok(), data_type),
+        DataType::Date64 => show::<Date64Type>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Second, _) => show::<TimestampSecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Millisecond, _) => show::<TimestampMillisecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Microsecond, _) => show::<TimestampMicrosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Nanosecond, _) => show::<TimestampNanosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Time32(TimeUnit::Second) => show::<Time32SecondType>(i32::try_from(raw).ok(), data_type),
+        DataType::Time32(TimeUnit::Millisecond) => show::<Time32MillisecondType>(i32::try_from(raw).ok(), data_type),
+        DataType::Time64(TimeUnit::Microsecond) => show::<Time64MicrosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Time64(TimeUnit::Nanosecond) => show::<Time64NanosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Duration(TimeUnit::Second) => show::<DurationSecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Duration(TimeUnit::Millisecond) => show::<DurationMillisecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Duration(TimeUnit::Microsecond) => show::<DurationMicrosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Duration(TimeUnit::Nanosecond) => show::<DurationNanosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Interval(IntervalUnit::YearMonth) => show::<IntervalYearMonthType>(i32::try_from(raw).ok(), data_type),
+        _ => None,
+    };
+    shown
+        .or_else(|| match data_type {
+            // A named zone needs the time-zone database, which Plumbline does
+            // not build in; the value is an instant, so show it in UTC.
+            DataType::Timestamp(unit, Some(zone)) if zone.as_ref() != "+00:00" => {
+                // Arrow spells the zero offset "Z".
+                Some(render_raw(raw, &DataType::Timestamp(*unit, Some("+00:00".into()))))
+            }
+            _ => None,
+        })
+        .unwrap_or_else(|| raw.to_string())
 }
 
 #[derive(Debug, Clone)]
@@ -45,6 +101,8 @@ pub struct TopValues {
     /// Values counted exactly before summarising, and the counters kept then.
     exact_limit: usize,
     counters: usize,
+    /// Counts gathered while shrinking, kept for the next time.
+    scratch: Vec<u64>,
 }
 
 impl Default for TopValues {
@@ -62,7 +120,14 @@ pub struct TopValue {
 
 impl TopValues {
     pub fn with_limits(exact_limit: usize, counters: usize) -> Self {
-        TopValues { counts: HashMap::default(), total: 0, summarised: false, exact_limit, counters: counters.min(exact_limit) }
+        TopValues {
+            counts: HashMap::default(),
+            total: 0,
+            summarised: false,
+            exact_limit,
+            counters: counters.min(exact_limit),
+            scratch: Vec::new(),
+        }
     }
 
     /// Changes the limits; a field already past the new exact limit is summarised now.
@@ -80,11 +145,15 @@ impl TopValues {
     /// Adds a value by its hash; `keep` gives the value the first time it is seen.
     pub fn add(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.total += 1;
-        if let Some(entry) = self.counts.get_mut(&hash) {
-            entry.0 += 1;
-            return;
+        match self.counts.entry(hash) {
+            Entry::Occupied(mut seen) => {
+                seen.get_mut().0 += 1;
+                return;
+            }
+            Entry::Vacant(new) => {
+                new.insert((1, keep()));
+            }
         }
-        self.counts.insert(hash, (1, keep()));
         if !self.summarised && self.counts.len() > self.exact_limit {
             self.summarised = true;
             self.shrink();
@@ -102,7 +171,10 @@ impl TopValues {
         if self.counts.len() <= self.counters {
             return;
         }
-        let mut counts: Vec<u64> = self.counts.values().map(|(c, _)| *c).collect();
+        // Reuse one buffer: summarised fields shrink every k new values.
+        let counts = &mut self.scratch;
+        counts.clear();
+        counts.extend(self.counts.values().map(|(c, _)| *c));
         // The (k+1)-th largest count, in linear time.
         let (_, &mut cut, _) = counts.select_nth_unstable_by(self.counters, |a, b| b.cmp(a));
         self.counts.retain(|_, (c, _)| *c > cut);
@@ -157,6 +229,24 @@ mod tests {
 
     fn add(t: &mut TopValues, v: u64) {
         t.add(v, || Kept::Text(format!("v{v}")));
+    }
+
+    #[test]
+    fn raw_values_render_as_arrow_shows_their_type() {
+        use arrow_schema::TimeUnit;
+        let shown = |raw: i128, data_type: DataType| Kept::Raw { raw, shown_as: Arc::new(data_type) }.render();
+        assert_eq!(shown(12345, DataType::Decimal128(12, 2)), "123.45");
+        assert_eq!(shown(-5, DataType::Decimal64(10, 3)), "-0.005");
+        assert_eq!(shown(1, DataType::Date32), "1970-01-02");
+        assert_eq!(shown(3661, DataType::Time32(TimeUnit::Second)), "01:01:01");
+        assert_eq!(shown(1_500_000, DataType::Timestamp(TimeUnit::Microsecond, Some("UTC".into()))), "1970-01-01T00:00:01.500Z");
+        assert_eq!(shown(1_500, DataType::Timestamp(TimeUnit::Millisecond, None)), "1970-01-01T00:00:01.500");
+        assert_eq!(shown(0, DataType::Timestamp(TimeUnit::Second, Some("Europe/Paris".into()))), "1970-01-01T00:00:00Z");
+        assert_eq!(shown(0, DataType::Timestamp(TimeUnit::Second, Some("+02:00".into()))), "1970-01-01T02:00:00+02:00");
+        assert_eq!(shown(7, DataType::Duration(TimeUnit::Second)), "PT7S");
+        // A raw integer that does not fit the type is shown as the integer.
+        assert_eq!(shown(1 << 40, DataType::Date32), "1099511627776");
+        assert_eq!(shown(i64::MAX.into(), DataType::Timestamp(TimeUnit::Second, Some("UTC".into()))), i64::MAX.to_string());
     }
 
     #[test]

@@ -8,7 +8,9 @@ use arrow_array::cast::AsArray;
 use arrow_array::types::*;
 use arrow_array::{Array, ArrowPrimitiveType, PrimitiveArray, RecordBatch};
 use arrow_buffer::{BooleanBuffer, BooleanBufferBuilder};
-use arrow_schema::{DataType, Field, UnionMode};
+use std::sync::Arc;
+
+use arrow_schema::{DataType, Field, TimeUnit, UnionMode};
 
 use super::declared::Declared;
 use super::{FieldShape, Kind, Role};
@@ -243,6 +245,14 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
         Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
+        Time32(TimeUnit::Second) => observe_primitive_raw::<Time32SecondType>(node, Kind::Time, n, array, present),
+        Time32(TimeUnit::Millisecond) => observe_primitive_raw::<Time32MillisecondType>(node, Kind::Time, n, array, present),
+        Time64(TimeUnit::Microsecond) => observe_primitive_raw::<Time64MicrosecondType>(node, Kind::Time, n, array, present),
+        Time64(TimeUnit::Nanosecond) => observe_primitive_raw::<Time64NanosecondType>(node, Kind::Time, n, array, present),
+        Duration(TimeUnit::Second) => observe_primitive_raw::<DurationSecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Millisecond) => observe_primitive_raw::<DurationMillisecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Microsecond) => observe_primitive_raw::<DurationMicrosecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Nanosecond) => observe_primitive_raw::<DurationNanosecondType>(node, Kind::Duration, n, array, present),
         Timestamp(unit, zone) => {
             let (scale, raw) = match unit {
                 arrow_schema::TimeUnit::Second => (1, array.as_primitive::<TimestampSecondType>().values().clone()),
@@ -251,16 +261,17 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
                 arrow_schema::TimeUnit::Nanosecond => (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone()),
             };
             if let Some(stats) = node.stats.as_deref_mut() {
+                let shown_as = Arc::new(array.data_type().clone());
+                let mut seconds = Vec::with_capacity(if zone.is_some() { n as usize } else { 0 });
                 for i in positions(present, array.len()) {
                     let v = raw[i];
-                    stats.add_scalar(hash::other(&v.to_le_bytes()), || {
-                        Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default())
-                    });
+                    stats.add_scalar(hash::other(&v.to_le_bytes()), || Kept::Raw { raw: v.into(), shown_as: shown_as.clone() });
                     // Only zoned timestamps are instants; local ones have no place in time.
                     if zone.is_some() {
-                        stats.add_instant(v.div_euclid(scale));
+                        seconds.push(v.div_euclid(scale));
                     }
                 }
+                stats.add_instants(&seconds);
             }
             node.kinds.add(Kind::Timestamp, n);
         }
@@ -286,8 +297,9 @@ fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item
 /// Floats: numbers, distinct and top values (NaN counted apart).
 fn observe_floats(node: &mut FieldShape, n: u64, values: impl Iterator<Item = f64>) {
     if let Some(stats) = node.stats.as_deref_mut() {
+        let values: Vec<f64> = values.collect();
+        stats.add_numbers(&values);
         for v in values {
-            stats.add_number(v);
             if !v.is_nan() {
                 stats.add_scalar(hash::float(v), || Kept::Float(v));
             }
@@ -313,12 +325,24 @@ fn observe_raw<'a>(
     node.kinds.add(kind, n);
 }
 
-/// Fixed-width primitives (temporal) by their native bytes.
-fn observe_primitive_raw<T: ArrowPrimitiveType>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>) {
+/// Fixed-width primitives (temporal) by their native bytes, kept as raw
+/// integers and rendered only if reported.
+fn observe_primitive_raw<T>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>)
+where
+    T: ArrowPrimitiveType,
+    T::Native: Into<i128>,
+{
     let a = array.as_primitive::<T>();
     let bytes: &[u8] = a.values().inner().as_slice();
     let width = std::mem::size_of::<T::Native>();
-    observe_raw(node, kind, n, array, positions(present, a.len()).map(|i| (i, &bytes[i * width..(i + 1) * width])));
+    if let Some(stats) = node.stats.as_deref_mut() {
+        let shown_as = Arc::new(array.data_type().clone());
+        for i in positions(present, a.len()) {
+            let raw: i128 = a.values()[i].into();
+            stats.add_scalar(hash::other(&bytes[i * width..(i + 1) * width]), || Kept::Raw { raw, shown_as: shown_as.clone() });
+        }
+    }
+    node.kinds.add(kind, n);
 }
 
 /// Decimals: numbers (value / 10^scale, as f64), distinct and top values.
@@ -330,13 +354,14 @@ where
     let a = array.as_primitive::<T>();
     let divisor = 10f64.powi(scale as i32);
     if let Some(stats) = node.stats.as_deref_mut() {
+        let shown_as = Arc::new(array.data_type().clone());
+        let mut numbers = Vec::with_capacity(n as usize);
         for i in positions(present, a.len()) {
             let raw: i128 = a.values()[i].into();
-            stats.add_number(raw as f64 / divisor);
-            stats.add_scalar(hash::other(&raw.to_le_bytes()), || {
-                Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default())
-            });
+            numbers.push(raw as f64 / divisor);
+            stats.add_scalar(hash::other(&raw.to_le_bytes()), || Kept::Raw { raw, shown_as: shown_as.clone() });
         }
+        stats.add_numbers(&numbers);
     }
     node.kinds.add(Kind::Decimal, n);
 }
@@ -371,15 +396,19 @@ where
     let mut hi = i128::MIN;
     let mut n = 0u64;
     let mut stats = node.stats.as_deref_mut();
+    let mut numbers = Vec::with_capacity(if stats.is_some() { a.len() } else { 0 });
     for i in positions(present, a.len()) {
         let v: i128 = values[i].into();
         lo = lo.min(v);
         hi = hi.max(v);
         n += 1;
         if let Some(stats) = stats.as_deref_mut() {
-            stats.add_number(v as f64);
+            numbers.push(v as f64);
             stats.add_scalar(hash::int(v), || Kept::Int(v));
         }
+    }
+    if let Some(stats) = stats {
+        stats.add_numbers(&numbers);
     }
     node.kinds.add(Kind::Int, n);
     if n > 0 {
