@@ -25,9 +25,55 @@ pub fn human_bytes(n: u64) -> String {
     if unit == 0 { format!("{n} bytes") } else { format!("{v:.1} {}", UNITS[unit]) }
 }
 
+/// A number for people: whole numbers with thousands separators, others
+/// to six significant digits without trailing zeros, very large or small
+/// ones in scientific notation.
+pub fn decimal(x: f64) -> String {
+    if !x.is_finite() || x == 0.0 {
+        return if x == 0.0 { "0".into() } else { x.to_string() };
+    }
+    let a = x.abs();
+    if !(1e-4..1e15).contains(&a) {
+        return format!("{x:.3e}");
+    }
+    let sign = if x < 0.0 { "-" } else { "" };
+    let whole_digits = a.log10().floor() as i32 + 1;
+    let decimals = (6 - whole_digits).max(0) as usize;
+    let text = format!("{a:.decimals$}");
+    let (whole, fraction) = text.split_once('.').unwrap_or((&text, ""));
+    let fraction = fraction.trim_end_matches('0');
+    let whole = group_digits(whole.parse().unwrap_or(0));
+    if fraction.is_empty() { format!("{sign}{whole}") } else { format!("{sign}{whole}.{fraction}") }
+}
+
+/// A share of a whole as a percentage: `12.5 %`, `< 0.1 %` for tiny ones.
+pub fn share(part: u64, whole: u64) -> String {
+    if whole == 0 {
+        return "–".into();
+    }
+    let p = part as f64 * 100.0 / whole as f64;
+    if part > 0 && p < 0.1 { "< 0.1 %".into() } else { format!("{p:.1} %") }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn decimals_are_formatted_for_people() {
+        assert_eq!(decimal(0.0), "0");
+        assert_eq!(decimal(-0.0), "0");
+        assert_eq!(decimal(1234567.0), "1,234,567");
+        assert_eq!(decimal(49993.87943469125), "49,993.9");
+        assert_eq!(decimal(-2.5), "-2.5");
+        assert_eq!(decimal(0.012345678), "0.0123457");
+        assert_eq!(decimal(3.0e-7), "3.000e-7");
+        assert_eq!(decimal(2.0e20), "2.000e20");
+        assert_eq!(decimal(f64::NAN), "NaN");
+        assert_eq!(share(1, 8), "12.5 %");
+        assert_eq!(share(1, 100_000), "< 0.1 %");
+        assert_eq!(share(0, 0), "–");
+    }
 
     #[test]
     fn numbers_are_formatted_for_people() {

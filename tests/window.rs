@@ -4,6 +4,7 @@
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
 
+use eframe::egui;
 use egui_kittest::Harness;
 use egui_kittest::kittest::Queryable;
 use plumbline::gui::PlumblineApp;
@@ -60,7 +61,12 @@ fn json_lines_show_missing_keys_apart_from_nulls() {
     let mut h = window(sample("deliveries.jsonl"));
     wait_for_read(&mut h);
     h.get_by_label_contains("JSON Lines");
+    // Only rows on screen are laid out: find the lower fields by the filter.
+    h.state_mut().as_mut().unwrap().field_tree.filter = "note".into();
+    h.step();
     h.get_by_label_contains("note   string · 1,279 null · 1,106 missing · 3 distinct");
+    h.state_mut().as_mut().unwrap().field_tree.filter = "zip".into();
+    h.step();
     h.get_by_label_contains("zip_code   mixed: int 3%, string 97%");
 }
 
@@ -107,4 +113,113 @@ fn the_stop_button_stops_the_read_and_the_result_is_marked_partial() {
     let app = h.state().as_ref().unwrap();
     let scan = app.state.scan.as_ref().unwrap();
     assert!(scan.shape.rows < 1_500_000, "{} rows", scan.shape.rows);
+}
+
+/// Clicks the first widget whose label contains `text`, then lets a frame pass.
+fn click(h: &mut Harness<'static, Option<PlumblineApp>>, text: &str) {
+    h.get_by_label_contains(text).click();
+    h.step();
+    h.step();
+}
+
+fn app<'h>(h: &'h Harness<'static, Option<PlumblineApp>>) -> &'h PlumblineApp {
+    h.state().as_ref().unwrap()
+}
+
+#[test]
+fn a_nested_field_shows_its_statistics_in_the_field_sheet() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    click(&mut h, "weight_kg   float32");
+    assert_eq!(app(&h).state.selected.as_deref(), Some("parcel.weight_kg"));
+    h.get_by_label("parcel.weight_kg");
+    h.get_by_label("Declared");
+    h.get_by_label("Float32, not null");
+    h.get_by_label("Distinct");
+    assert_eq!(h.get_all_by_label("3,000").count(), 2, "places and distinct values");
+    // Min and max as the profile found them (`plumbline profile` prints the same).
+    h.get_by_label("0.200926");
+    h.get_by_label("14.0744");
+    h.get_by_label("Standard deviation");
+    h.get_by_label_contains("p1 ");
+    h.get_by_label("Histogram");
+}
+
+#[test]
+fn findings_list_every_finding_and_jump_to_the_field() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    click(&mut h, "Findings");
+    let count = plumbline::gui::findings::listed(&app(&h).state, Default::default()).len();
+    assert!(count >= 11, "every kind of finding is in the demo data: {count}");
+    h.get_by_label(&format!("{count} findings"));
+    h.get_by_label("far outliers");
+    h.get_by_label("numbers as text");
+    // Severity first: findings that break a typed read lead.
+    let first = plumbline::gui::findings::listed(&app(&h).state, Default::default());
+    assert_eq!(first[0].severity, plumbline::profile::findings::Severity::Attention);
+    h.get(egui_kittest::kittest::By::new().role(egui::accesskit::Role::Link).label("distance_km")).click();
+    h.step();
+    h.step();
+    assert_eq!(app(&h).state.selected.as_deref(), Some("distance_km"));
+    assert_eq!(app(&h).state.area, plumbline::gui::state::Area::FieldSheet);
+    h.get_by_label_contains("far outliers");
+}
+
+/// Opens the Target picker (showing `from`) and picks `to`.
+fn choose_target(h: &mut Harness<'static, Option<PlumblineApp>>, from: &str, to: &str) {
+    use egui_kittest::kittest::By;
+    h.get(By::new().role(egui::accesskit::Role::ComboBox).value(from)).click();
+    h.step();
+    h.step();
+    click(h, to);
+}
+
+#[test]
+fn record_types_show_code_for_two_targets() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    click(&mut h, "Record types");
+    h.get_by_label_contains("case class Deliveries(");
+    h.get_by_label_contains("Fits all 3,000 rows read.");
+    choose_target(&mut h, "scala", "typescript");
+    h.get_by_label_contains("export interface Deliveries {");
+    assert!(h.query_by_label_contains("case class Deliveries(").is_none());
+    choose_target(&mut h, "typescript", "rust");
+    h.get_by_label_contains("pub struct Deliveries {");
+}
+
+#[test]
+fn the_field_tree_filters_folds_and_moves_with_the_keyboard() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    h.get_by_role(egui::accesskit::Role::TextInput).focus();
+    h.step();
+    h.get_by_role(egui::accesskit::Role::TextInput).type_text("zone");
+    h.step();
+    h.step();
+    assert_eq!(h.get_all_by_label_contains("zone   utf8").count(), 2);
+    assert!(h.query_by_label_contains("delivery_id").is_none(), "filtered out");
+    h.state_mut().as_mut().unwrap().field_tree.filter.clear();
+    h.state_mut().as_mut().unwrap().field_tree.only_findings = true;
+    h.step();
+    h.step();
+    h.get_by_label_contains("distance_km");
+    assert!(h.query_by_label_contains("courier   struct").is_none(), "no findings there");
+    h.state_mut().as_mut().unwrap().field_tree.only_findings = false;
+    h.step();
+    // Unfocus the filter, then move down from the first field and fold a struct.
+    h.get_by_label_contains("delivery_id   utf8").click();
+    h.step();
+    h.key_press(egui::Key::ArrowDown);
+    h.step();
+    assert_eq!(app(&h).state.selected.as_deref(), Some("courier"));
+    h.key_press(egui::Key::ArrowLeft);
+    h.step();
+    h.step();
+    assert!(h.query_by_label_contains("vehicle   utf8").is_none(), "courier folded");
+    h.key_press(egui::Key::ArrowRight);
+    h.step();
+    h.step();
+    h.get_by_label_contains("vehicle   utf8");
 }

@@ -5,29 +5,42 @@ use std::sync::mpsc::{Receiver, channel};
 
 use eframe::egui;
 
+use super::field_sheet::FieldSheet;
 use super::field_tree::FieldTree;
+use super::findings::FindingsArea;
+use super::record_types::RecordTypes;
 use super::source_bar::SourceBar;
-use super::state::{Intent, Reading, State};
+use super::state::{Area, Intent, Reading, State};
 use super::worker::{JobMessage, ScanJob};
 
 pub struct PlumblineApp {
     pub state: State,
     source_bar: SourceBar,
-    field_tree: FieldTree,
+    pub field_tree: FieldTree,
+    field_sheet: FieldSheet,
+    findings: FindingsArea,
+    pub record_types: RecordTypes,
     job: Option<ScanJob>,
     /// Answers from the open dialog, which runs on its own thread.
     chosen: Option<Receiver<Option<PathBuf>>>,
+    /// The outcome of a save, which runs on its own thread.
+    saved: Option<Receiver<Result<String, String>>>,
     ctx: egui::Context,
 }
 
 impl PlumblineApp {
     pub fn new(ctx: egui::Context, path: Option<PathBuf>) -> Self {
+        super::palette::install_fonts(&ctx);
         let mut app = PlumblineApp {
             state: State::default(),
             source_bar: SourceBar,
-            field_tree: FieldTree,
+            field_tree: FieldTree::default(),
+            field_sheet: FieldSheet,
+            findings: FindingsArea::default(),
+            record_types: RecordTypes::default(),
             job: None,
             chosen: None,
+            saved: None,
             ctx,
         };
         if let Some(path) = path {
@@ -68,7 +81,30 @@ impl PlumblineApp {
                 }
             }
             Intent::Select(path) => self.state.selected = Some(path),
-            Intent::DismissMessage => self.state.message = None,
+            Intent::ShowField(path) => {
+                self.state.selected = Some(path);
+                self.state.area = Area::FieldSheet;
+            }
+            Intent::ShowArea(area) => self.state.area = area,
+            Intent::SaveText { text, file_name } => {
+                let (tx, rx) = channel();
+                let ctx = self.ctx.clone();
+                std::thread::spawn(move || {
+                    let target = rfd::FileDialog::new().set_title("Save the record types").set_file_name(&file_name).save_file();
+                    if let Some(target) = target {
+                        let outcome = std::fs::write(&target, text)
+                            .map(|_| format!("Saved to {}", target.display()))
+                            .map_err(|e| format!("{}: cannot save: {e}", target.display()));
+                        let _ = tx.send(outcome);
+                    }
+                    ctx.request_repaint();
+                });
+                self.saved = Some(rx);
+            }
+            Intent::DismissMessage => {
+                self.state.message = None;
+                self.state.notice = None;
+            }
         }
     }
 
@@ -80,6 +116,15 @@ impl PlumblineApp {
             self.chosen = None;
             if let Some(path) = answer {
                 self.apply(Intent::Open(path));
+            }
+        }
+        if let Some(rx) = &self.saved
+            && let Ok(outcome) = rx.try_recv()
+        {
+            self.saved = None;
+            match outcome {
+                Ok(note) => self.state.notice = Some(note),
+                Err(e) => self.state.message = Some(e),
             }
         }
         let Some(job) = &self.job else { return };
@@ -102,8 +147,7 @@ impl PlumblineApp {
                     if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
                         self.state.message = Some(error.clone());
                     }
-                    self.state.selected = None;
-                    self.state.scan = Some(scan);
+                    self.state.show_scan(scan);
                 }
                 Err(e) => self.state.message = Some(e),
             }
@@ -118,8 +162,23 @@ impl PlumblineApp {
         egui::Panel::top("source_bar").show(ui, |ui| {
             intents.extend(self.source_bar.show(ui, &self.state));
         });
-        egui::CentralPanel::default().show(ui, |ui| {
+        egui::Panel::left("field_tree").resizable(true).default_size(420.0).show(ui, |ui| {
             intents.extend(self.field_tree.show(ui, &self.state));
+        });
+        egui::CentralPanel::default().show(ui, |ui| {
+            ui.horizontal(|ui| {
+                for area in Area::ALL {
+                    if ui.selectable_label(self.state.area == area, area.label()).clicked() {
+                        intents.push(Intent::ShowArea(area));
+                    }
+                }
+            });
+            ui.separator();
+            intents.extend(match self.state.area {
+                Area::FieldSheet => self.field_sheet.show(ui, &self.state),
+                Area::Findings => self.findings.show(ui, &self.state),
+                Area::RecordTypes => self.record_types.show(ui, &self.state),
+            });
         });
         for intent in intents {
             self.apply(intent);

@@ -3,7 +3,12 @@
 //! happens on worker threads.
 
 pub mod app;
+pub mod field_sheet;
 pub mod field_tree;
+pub mod findings;
+pub mod highlight;
+pub mod palette;
+pub mod record_types;
 pub mod source_bar;
 pub mod state;
 pub mod worker;

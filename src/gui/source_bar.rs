@@ -63,6 +63,14 @@ impl SourceBar {
                 ui.label("No source open. Open a Parquet, Arrow IPC, JSON, JSON Lines or CSV file, or drop one here.");
             }
         });
+        if let Some(notice) = &state.notice {
+            ui.horizontal(|ui| {
+                ui.label(notice);
+                if ui.small_button("Dismiss").clicked() {
+                    intents.push(Intent::DismissMessage);
+                }
+            });
+        }
         if let Some(message) = &state.message {
             ui.horizontal(|ui| {
                 ui.colored_label(ui.visuals().error_fg_color, message);

@@ -3,6 +3,7 @@
 
 use std::path::PathBuf;
 
+use crate::report::{FieldEntry, Report};
 use crate::scan::Scan;
 use crate::source::Progress;
 
@@ -14,17 +15,66 @@ pub enum Intent {
     Open(PathBuf),
     StopReading,
     Select(String),
+    /// Select a field and show its Field sheet (from Findings).
+    ShowField(String),
+    ShowArea(Area),
+    /// Ask where to save `text` (the save dialog suggests `file_name`).
+    SaveText { text: String, file_name: String },
     DismissMessage,
+}
+
+/// The areas that share the space right of the Field tree.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Area {
+    #[default]
+    FieldSheet,
+    Findings,
+    RecordTypes,
+}
+
+impl Area {
+    pub const ALL: [Area; 3] = [Area::FieldSheet, Area::Findings, Area::RecordTypes];
+
+    pub fn label(self) -> &'static str {
+        match self {
+            Area::FieldSheet => "Field sheet",
+            Area::Findings => "Findings",
+            Area::RecordTypes => "Record types",
+        }
+    }
 }
 
 #[derive(Default)]
 pub struct State {
     pub scan: Option<Box<Scan>>,
+    /// The scan's statistics as the report states them, built once per scan.
+    pub report: Option<Report>,
+    /// Counts the scans shown, so areas know when to rebuild what they cache.
+    pub generation: u64,
     /// Set while a source is being read.
     pub reading: Option<Reading>,
     /// A failure to show, e.g. a bad file; the app keeps working.
     pub message: Option<String>,
+    /// A neutral note, e.g. where a file was saved.
+    pub notice: Option<String>,
     pub selected: Option<String>,
+    pub area: Area,
+}
+
+impl State {
+    /// Shows a finished scan, with its report.
+    pub fn show_scan(&mut self, scan: Box<Scan>) {
+        self.report = Some(crate::report::build(&scan, crate::report::ReportOptions::default()));
+        self.scan = Some(scan);
+        self.selected = None;
+        self.generation += 1;
+    }
+
+    /// The report entry of the selected field.
+    pub fn selected_entry(&self) -> Option<&FieldEntry> {
+        let path = self.selected.as_deref()?;
+        self.report.as_ref()?.fields.iter().find(|f| f.path == path)
+    }
 }
 
 pub struct Reading {

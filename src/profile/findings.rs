@@ -31,6 +31,42 @@ pub struct Finding {
     pub examples: Vec<String>,
 }
 
+/// How much a finding matters to someone about to write a pipeline.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Severity {
+    /// Likely to break a typed read or a join (mixed kinds, numbers as text).
+    Attention,
+    /// A quality question worth checking by eye.
+    Check,
+    /// Worth knowing (a candidate key, a constant column).
+    Note,
+}
+
+impl Severity {
+    pub fn of(kind: &str) -> Severity {
+        match kind {
+            "mixed_kinds" | "numbers_as_text" | "case_variants" => Severity::Attention,
+            "unique_per_row" | "single_value" | "dominant_value" => Severity::Note,
+            _ => Severity::Check,
+        }
+    }
+
+    pub fn label(self) -> &'static str {
+        match self {
+            Severity::Attention => "attention",
+            Severity::Check => "check",
+            Severity::Note => "note",
+        }
+    }
+}
+
+impl Finding {
+    pub fn severity(&self) -> Severity {
+        Severity::of(self.kind)
+    }
+}
+
 fn percent(part: u64, whole: u64) -> String {
     format!("{:.1} %", part as f64 * 100.0 / whole.max(1) as f64)
 }

@@ -42,6 +42,20 @@ impl Lang {
     pub const ALL: [Lang; 8] =
         [Lang::Scala, Lang::SparkDdl, Lang::Rust, Lang::Python, Lang::Typescript, Lang::JsonSchema, Lang::Avro, Lang::Proto];
 
+    /// The usual file name ending for the target's code.
+    pub fn extension(self) -> &'static str {
+        match self {
+            Lang::Scala => "scala",
+            Lang::SparkDdl => "ddl",
+            Lang::Rust => "rs",
+            Lang::Python => "py",
+            Lang::JsonSchema => "schema.json",
+            Lang::Typescript => "ts",
+            Lang::Avro => "avsc",
+            Lang::Proto => "proto",
+        }
+    }
+
     /// The name the command line takes (`--lang spark-ddl`).
     pub fn name(self) -> String {
         use clap::ValueEnum;
