@@ -5,6 +5,7 @@
 //! [`report`], the CLI and the window ([`gui`]).
 
 pub mod cli;
+pub mod compare;
 pub mod format;
 pub mod gui;
 pub mod path;

@@ -143,6 +143,12 @@ fn a_nested_field_shows_its_statistics_in_the_field_sheet() {
     h.get_by_label("Standard deviation");
     h.get_by_label_contains("p1 ");
     h.get_by_label("Histogram");
+    h.get_by_label("Every value appears once.");
+    // A field with repeated values lists them with counts and shares.
+    click(&mut h, "vehicle   utf8");
+    h.get_by_label("Top values");
+    // Null and missing shares, then one share per vehicle kind.
+    assert_eq!(h.get_all_by_label_contains(" %)").count(), 2 + 3);
 }
 
 #[test]
@@ -222,4 +228,35 @@ fn the_field_tree_filters_folds_and_moves_with_the_keyboard() {
     h.step();
     h.step();
     h.get_by_label_contains("vehicle   utf8");
+}
+
+#[test]
+fn the_theme_switches_between_dark_and_light() {
+    let mut h = window(sample("deliveries.csv"));
+    wait_for_read(&mut h);
+    let dark_at_start = h.ctx.theme() == egui::Theme::Dark;
+    click(&mut h, if dark_at_start { "Light theme" } else { "Dark theme" });
+    assert_ne!((h.ctx.theme() == egui::Theme::Dark), dark_at_start);
+    h.get_by_label(if dark_at_start { "Dark theme" } else { "Light theme" });
+}
+
+#[test]
+fn compare_shows_the_later_drop_beside_the_open_source() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    click(&mut h, "Compare");
+    h.get_by_label("Open a second source…");
+    h.state_mut().as_mut().unwrap().apply(Intent::OpenCompare(sample("later/deliveries.parquet")));
+    wait_for_read(&mut h);
+    h.get_by_label("+ 1 added · ~ 1 type changed · ~ 1 nulls or missing keys changed");
+    assert_eq!(h.get_all_by_label_contains("delivery_id   utf8 · 0.0 % empty").count(), 2, "both sides");
+    // Only rows on screen are laid out; the added field comes last.
+    h.get_by_label("only changed fields").click();
+    h.step();
+    h.step();
+    assert!(h.query_by_label_contains("delivery_id   utf8 · 0.0 % empty").is_none(), "unchanged fields hidden");
+    h.get_by_label_contains("co2_grams");
+    assert_eq!(h.get_all_by_label("+ added").count(), 1);
+    // The Field tree marks the open source's changed fields, symbol and word.
+    assert_eq!(h.get_all_by_label("~ type changed").count(), 2, "in the tree and in Compare");
 }

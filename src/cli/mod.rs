@@ -21,6 +21,15 @@ pub struct Cli {
     pub command: Option<Command>,
     /// A file or directory to open in the window.
     pub path: Option<PathBuf>,
+    /// Window: select this field (its path, e.g. `parcel.weight_kg`) once read.
+    #[arg(long, value_name = "FIELD")]
+    pub field: Option<String>,
+    /// Window: a second source to compare the first with (shows Compare).
+    #[arg(long, value_name = "PATH")]
+    pub compare: Option<PathBuf>,
+    /// Window: the area to show first.
+    #[arg(long, value_enum, default_value = "field-sheet")]
+    pub area: crate::gui::state::Area,
 }
 
 #[derive(Debug, Subcommand)]
@@ -103,7 +112,7 @@ pub fn main() -> ExitCode {
     match cli.command {
         Some(Command::Profile(args)) => run_profile(&args),
         Some(Command::Types(args)) => run_types(&args),
-        None => match crate::gui::run(cli.path) {
+        None => match crate::gui::run(crate::gui::Start { path: cli.path, field: cli.field, area: cli.area, compare: cli.compare }) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
         },

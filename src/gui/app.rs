@@ -5,6 +5,7 @@ use std::sync::mpsc::{Receiver, channel};
 
 use eframe::egui;
 
+use super::compare::CompareArea;
 use super::field_sheet::FieldSheet;
 use super::field_tree::FieldTree;
 use super::findings::FindingsArea;
@@ -20,9 +21,13 @@ pub struct PlumblineApp {
     field_sheet: FieldSheet,
     findings: FindingsArea,
     pub record_types: RecordTypes,
+    compare: CompareArea,
     job: Option<ScanJob>,
-    /// Answers from the open dialog, which runs on its own thread.
-    chosen: Option<Receiver<Option<PathBuf>>>,
+    /// Reads the second source of Compare.
+    compare_job: Option<ScanJob>,
+    /// Answers from the open dialog, which runs on its own thread: the
+    /// path, and whether it is for Compare.
+    chosen: Option<Receiver<(Option<PathBuf>, bool)>>,
     /// The outcome of a save, which runs on its own thread.
     saved: Option<Receiver<Result<String, String>>>,
     ctx: egui::Context,
@@ -38,7 +43,9 @@ impl PlumblineApp {
             field_sheet: FieldSheet,
             findings: FindingsArea::default(),
             record_types: RecordTypes::default(),
+            compare: CompareArea::default(),
             job: None,
+            compare_job: None,
             chosen: None,
             saved: None,
             ctx,
@@ -49,22 +56,45 @@ impl PlumblineApp {
         app
     }
 
+    /// Opens with a field to select and an area to show once read.
+    pub fn start(ctx: egui::Context, start: super::Start) -> Self {
+        let mut app = PlumblineApp::new(ctx, start.path);
+        app.state.select_when_read = start.field;
+        app.state.compare_when_read = start.compare;
+        app.state.area = start.area;
+        app
+    }
+
     /// True while a source is being read (tests wait on this).
     pub fn is_busy(&self) -> bool {
-        self.job.is_some()
+        self.job.is_some() || self.compare_job.is_some()
+    }
+
+    /// Shows the native open dialog on its own thread.
+    fn choose_file(&mut self, for_compare: bool) {
+        let (tx, rx) = channel();
+        let ctx = self.ctx.clone();
+        std::thread::spawn(move || {
+            let title = if for_compare { "Open a source to compare with" } else { "Open a data source" };
+            let picked = rfd::FileDialog::new().set_title(title).pick_file();
+            let _ = tx.send((picked, for_compare));
+            ctx.request_repaint();
+        });
+        self.chosen = Some(rx);
     }
 
     pub fn apply(&mut self, intent: Intent) {
         match intent {
-            Intent::ChooseFile => {
-                let (tx, rx) = channel();
+            Intent::ChooseFile => self.choose_file(false),
+            Intent::ChooseCompareFile => self.choose_file(true),
+            Intent::OpenCompare(path) => {
+                if let Some(job) = self.compare_job.take() {
+                    job.stop();
+                }
                 let ctx = self.ctx.clone();
-                std::thread::spawn(move || {
-                    let picked = rfd::FileDialog::new().set_title("Open a data source").pick_file();
-                    let _ = tx.send(picked);
-                    ctx.request_repaint();
-                });
-                self.chosen = Some(rx);
+                self.state.compare_reading = Some(Reading { path: path.clone(), progress: Default::default() });
+                self.state.area = Area::Compare;
+                self.compare_job = Some(ScanJob::start(path, move || ctx.request_repaint()));
             }
             Intent::Open(path) => {
                 if let Some(job) = self.job.take() {
@@ -114,8 +144,10 @@ impl PlumblineApp {
             && let Ok(answer) = rx.try_recv()
         {
             self.chosen = None;
-            if let Some(path) = answer {
-                self.apply(Intent::Open(path));
+            match answer {
+                (Some(path), false) => self.apply(Intent::Open(path)),
+                (Some(path), true) => self.apply(Intent::OpenCompare(path)),
+                (None, _) => {}
             }
         }
         if let Some(rx) = &self.saved
@@ -127,30 +159,33 @@ impl PlumblineApp {
                 Err(e) => self.state.message = Some(e),
             }
         }
-        let Some(job) = &self.job else { return };
-        let mut finished = None;
-        while let Ok(message) = job.messages.try_recv() {
-            match message {
-                JobMessage::Progress(p) => {
-                    if let Some(r) = &mut self.state.reading {
-                        r.progress = p;
-                    }
+        self.poll_compare();
+        let Some(result) = poll_job(&mut self.job, &mut self.state.reading) else { return };
+        match result {
+            Ok(scan) => {
+                if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
+                    self.state.message = Some(error.clone());
                 }
-                JobMessage::Finished(result) => finished = Some(result),
+                self.state.show_scan(scan);
+                if let Some(other) = self.state.compare_when_read.take() {
+                    self.apply(Intent::OpenCompare(other));
+                }
             }
+            Err(e) => self.state.message = Some(e),
         }
-        if let Some(result) = finished {
-            self.job = None;
-            self.state.reading = None;
-            match result {
-                Ok(scan) => {
-                    if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
-                        self.state.message = Some(error.clone());
-                    }
-                    self.state.show_scan(scan);
+    }
+
+    fn poll_compare(&mut self) {
+        let Some(result) = poll_job(&mut self.compare_job, &mut self.state.compare_reading) else { return };
+        match (result, &self.state.scan) {
+            (Ok(scan), Some(open)) => {
+                if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
+                    self.state.message = Some(error.clone());
                 }
-                Err(e) => self.state.message = Some(e),
+                self.state.comparison = Some(super::state::Comparison::new(open, scan));
             }
+            (Ok(_), None) => self.state.message = Some("open a source before comparing".into()),
+            (Err(e), _) => self.state.message = Some(e),
         }
     }
 
@@ -162,7 +197,7 @@ impl PlumblineApp {
         egui::Panel::top("source_bar").show(ui, |ui| {
             intents.extend(self.source_bar.show(ui, &self.state));
         });
-        egui::Panel::left("field_tree").resizable(true).default_size(420.0).show(ui, |ui| {
+        egui::Panel::left("field_tree").resizable(true).default_size(420.0).min_size(340.0).show(ui, |ui| {
             intents.extend(self.field_tree.show(ui, &self.state));
         });
         egui::CentralPanel::default().show(ui, |ui| {
@@ -178,12 +213,34 @@ impl PlumblineApp {
                 Area::FieldSheet => self.field_sheet.show(ui, &self.state),
                 Area::Findings => self.findings.show(ui, &self.state),
                 Area::RecordTypes => self.record_types.show(ui, &self.state),
+                Area::Compare => self.compare.show(ui, &self.state),
             });
         });
         for intent in intents {
             self.apply(intent);
         }
     }
+}
+
+/// Takes a job's messages: progress into `reading`; the result once it
+/// finished (the job and `reading` are then cleared).
+fn poll_job(job: &mut Option<ScanJob>, reading: &mut Option<Reading>) -> Option<Result<Box<crate::scan::Scan>, String>> {
+    let mut finished = None;
+    while let Some(message) = job.as_ref().and_then(|j| j.messages.try_recv().ok()) {
+        match message {
+            JobMessage::Progress(p) => {
+                if let Some(r) = reading {
+                    r.progress = p;
+                }
+            }
+            JobMessage::Finished(result) => finished = Some(result),
+        }
+    }
+    if finished.is_some() {
+        *job = None;
+        *reading = None;
+    }
+    finished
 }
 
 impl eframe::App for PlumblineApp {

@@ -42,7 +42,14 @@ fn show_field(ui: &mut egui::Ui, field: &FieldEntry) {
             });
         }
         if let Some(top) = stats.top.as_ref().filter(|t| !t.is_empty()) {
-            section(ui, "Top values", |ui| top_values(ui, field, stats, top));
+            section(ui, "Top values", |ui| {
+                // A list of values seen once each says nothing about frequency.
+                if top.iter().all(|t| t.count == 1) && stats.top_exact != Some(false) {
+                    ui.label("Every value appears once.");
+                } else {
+                    top_values(ui, field, stats, top);
+                }
+            });
         }
         if let Some(lengths) = &stats.lengths {
             section(ui, "Text lengths (characters)", |ui| lengths_section(ui, "text_lengths", lengths));

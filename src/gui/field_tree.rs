@@ -69,7 +69,7 @@ impl FieldTree {
         }
         scroll.show_rows(ui, ROW_HEIGHT, visible.len(), |ui, range| {
             for &i in &visible[range] {
-                self.show_row(ui, i, selected, &mut intents);
+                self.show_row(ui, i, state, &mut intents);
             }
         });
         intents
@@ -165,7 +165,8 @@ impl FieldTree {
         }
     }
 
-    fn show_row(&mut self, ui: &mut egui::Ui, i: usize, selected: Option<&str>, intents: &mut Vec<Intent>) {
+    fn show_row(&mut self, ui: &mut egui::Ui, i: usize, state: &State, intents: &mut Vec<Intent>) {
+        let selected = state.selected.as_deref();
         let row = &self.rows[i];
         ui.horizontal(|ui| {
             ui.set_height(ROW_HEIGHT);
@@ -187,6 +188,12 @@ impl FieldTree {
             let is_selected = selected == Some(row.path.as_str());
             if ui.selectable_label(is_selected, &row.text).clicked() {
                 intents.push(Intent::Select(row.path.clone()));
+            }
+            if let Some(change) = state.comparison.as_ref().and_then(|c| c.by_path.get(&row.path))
+                && *change != crate::compare::Change::Same
+            {
+                let (colour, text) = super::compare::mark(ui.visuals(), change);
+                ui.colored_label(colour, text).on_hover_text("against the second source in Compare");
             }
             if row.findings > 0 {
                 let marker = format!("◆ {}", row.findings);

@@ -3,6 +3,7 @@
 //! happens on worker threads.
 
 pub mod app;
+pub mod compare;
 pub mod field_sheet;
 pub mod field_tree;
 pub mod findings;
@@ -17,12 +18,23 @@ use std::path::PathBuf;
 
 pub use app::PlumblineApp;
 
-/// Opens the window, reading `path` first if given.
-pub fn run(path: Option<PathBuf>) -> Result<(), String> {
+/// What the window opens with.
+#[derive(Debug, Clone, Default)]
+pub struct Start {
+    pub path: Option<PathBuf>,
+    /// A field to select once the source is read.
+    pub field: Option<String>,
+    pub area: state::Area,
+    /// A second source to compare with once the first is read.
+    pub compare: Option<PathBuf>,
+}
+
+/// Opens the window.
+pub fn run(start: Start) -> Result<(), String> {
     let options = eframe::NativeOptions {
         viewport: eframe::egui::ViewportBuilder::default()
             .with_title("Plumbline")
-            .with_inner_size([1100.0, 720.0])
+            .with_inner_size([1280.0, 800.0])
             .with_drag_and_drop(true),
         renderer: eframe::Renderer::Glow,
         ..Default::default()
@@ -30,7 +42,7 @@ pub fn run(path: Option<PathBuf>) -> Result<(), String> {
     eframe::run_native(
         "Plumbline",
         options,
-        Box::new(move |cc| Ok(Box::new(PlumblineApp::new(cc.egui_ctx.clone(), path)))),
+        Box::new(move |cc| Ok(Box::new(PlumblineApp::start(cc.egui_ctx.clone(), start)))),
     )
     .map_err(|e| format!("cannot open the window: {e}"))
 }

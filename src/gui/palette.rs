@@ -32,6 +32,17 @@ pub fn severity(visuals: &Visuals, severity: crate::profile::findings::Severity)
     }
 }
 
+/// A field's change between two sources (shown with its symbol too).
+pub fn change(visuals: &Visuals, change: &crate::compare::Change) -> Color32 {
+    use crate::compare::Change::*;
+    match change {
+        Same => visuals.weak_text_color(),
+        Added => pick(visuals, Color32::from_rgb(30, 120, 60), Color32::from_rgb(110, 200, 130)),
+        Removed => pick(visuals, Color32::from_rgb(178, 40, 48), Color32::from_rgb(240, 110, 110)),
+        TypeChanged | EmptinessChanged => finding(visuals),
+    }
+}
+
 /// Lets the proportional font fall back to the monospace one, which has the
 /// geometric shapes the symbols above use (▲ ● ○ ◆ ▸ ▾).
 pub fn install_fonts(ctx: &eframe::egui::Context) {

@@ -15,6 +15,10 @@ impl SourceBar {
             if ui.button("Open…").on_hover_text("Open a file or a directory of part files").clicked() {
                 intents.push(Intent::ChooseFile);
             }
+            let dark = ui.visuals().dark_mode;
+            if ui.button(if dark { "Light theme" } else { "Dark theme" }).on_hover_text("Switch the window's colours").clicked() {
+                ui.ctx().set_theme(if dark { egui::Theme::Light } else { egui::Theme::Dark });
+            }
             ui.separator();
             if let Some(reading) = &state.reading {
                 ui.label(format!("Reading {}", reading.path.display()));

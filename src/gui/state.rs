@@ -1,6 +1,7 @@
 //! What the window knows, apart from how it is drawn. Drawing code reads
 //! this and returns [`Intent`]s; the app applies them after the frame.
 
+use std::collections::HashMap;
 use std::path::PathBuf;
 
 use crate::report::{FieldEntry, Report};
@@ -18,28 +19,33 @@ pub enum Intent {
     /// Select a field and show its Field sheet (from Findings).
     ShowField(String),
     ShowArea(Area),
+    /// Show the open dialog for a second source to compare with.
+    ChooseCompareFile,
+    OpenCompare(PathBuf),
     /// Ask where to save `text` (the save dialog suggests `file_name`).
     SaveText { text: String, file_name: String },
     DismissMessage,
 }
 
 /// The areas that share the space right of the Field tree.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, clap::ValueEnum)]
 pub enum Area {
     #[default]
     FieldSheet,
     Findings,
     RecordTypes,
+    Compare,
 }
 
 impl Area {
-    pub const ALL: [Area; 3] = [Area::FieldSheet, Area::Findings, Area::RecordTypes];
+    pub const ALL: [Area; 4] = [Area::FieldSheet, Area::Findings, Area::RecordTypes, Area::Compare];
 
     pub fn label(self) -> &'static str {
         match self {
             Area::FieldSheet => "Field sheet",
             Area::Findings => "Findings",
             Area::RecordTypes => "Record types",
+            Area::Compare => "Compare",
         }
     }
 }
@@ -58,15 +64,42 @@ pub struct State {
     /// A neutral note, e.g. where a file was saved.
     pub notice: Option<String>,
     pub selected: Option<String>,
+    /// Selected once the next scan is shown (the window's `--field`).
+    pub select_when_read: Option<String>,
+    /// Compared with once the next scan is shown (the window's `--compare`).
+    pub compare_when_read: Option<PathBuf>,
     pub area: Area,
+    /// A second source and how its fields differ from the open one's.
+    pub comparison: Option<Comparison>,
+    /// Set while the second source is being read.
+    pub compare_reading: Option<Reading>,
+}
+
+pub struct Comparison {
+    pub scan: Box<Scan>,
+    pub changes: Vec<crate::compare::FieldChange>,
+    /// Each field of the open source, by path, and what happened to it.
+    pub by_path: HashMap<String, crate::compare::Change>,
+}
+
+impl Comparison {
+    pub fn new(before: &Scan, scan: Box<Scan>) -> Self {
+        let changes = crate::compare::compare_shapes(&before.shape, &scan.shape);
+        let by_path = changes.iter().map(|c| (c.path.clone(), c.change.clone())).collect();
+        Comparison { scan, changes, by_path }
+    }
 }
 
 impl State {
     /// Shows a finished scan, with its report.
     pub fn show_scan(&mut self, scan: Box<Scan>) {
         self.report = Some(crate::report::build(&scan, crate::report::ReportOptions::default()));
+        // A comparison is with the open source: compare the new one instead.
+        if let Some(old) = self.comparison.take() {
+            self.comparison = Some(Comparison::new(&scan, old.scan));
+        }
         self.scan = Some(scan);
-        self.selected = None;
+        self.selected = self.select_when_read.take();
         self.generation += 1;
     }
 

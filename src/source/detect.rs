@@ -97,9 +97,27 @@ pub fn detect(path: &Path, forced: Option<FormatChoice>) -> Result<Detected, Sou
     if compression == Compression::None && matches!(extension_of(path).as_str(), "arrows" | "stream") {
         return Ok(Detected { format: Format::ArrowStream, compression });
     }
-    let text = sniff_text(path, compression)?;
-    let format = text_format(path, &text)?;
+    let text = sniff_text(path, compression, SNIFF_BYTES)?;
+    let mut format = text_format(path, &text)?;
+    if format == Format::Json && text.len() == SNIFF_BYTES && first_value_unfinished(&text) {
+        // The first value outgrows the window (a wide JSON Lines record):
+        // look as far as one record may be long before deciding.
+        let longer = sniff_text(path, compression, super::limits::MAX_RECORD_BYTES + SNIFF_BYTES)?;
+        format = text_format(path, &longer)?;
+        if format == Format::Json && first_value_unfinished(&longer) && matches!(extension_of(path).as_str(), "jsonl" | "ndjson") {
+            format = Format::JsonLines;
+        }
+    }
     Ok(Detected { format, compression })
+}
+
+/// True when `text` starts a bracketed JSON value that does not end in it.
+fn first_value_unfinished(text: &[u8]) -> bool {
+    let body = strip_bom(text);
+    match body.iter().position(|&b| !is_json_ws(b)) {
+        Some(i) if matches!(body[i], b'{' | b'[') => end_of_first_value(&body[i..]).is_none(),
+        _ => false,
+    }
 }
 
 fn binary_format(head: &[u8]) -> Option<Format> {
@@ -168,7 +186,7 @@ fn check_forced(
             if let Some(b) = binary {
                 return Err(wrong(format, format!("it is a {} file", b.label())));
             }
-            let text = sniff_text(path, compression)?;
+            let text = sniff_text(path, compression, SNIFF_BYTES)?;
             if !is_text(&text) {
                 return Err(wrong(format, "it holds binary data (NUL bytes or invalid UTF-8)".into()));
             }
@@ -178,11 +196,11 @@ fn check_forced(
     Ok(Detected { format, compression })
 }
 
-fn sniff_text(path: &Path, compression: Compression) -> Result<Vec<u8>, SourceError> {
-    let mut reader = open_decompressed(path, compression)?.reader;
-    let mut buf = vec![0u8; SNIFF_BYTES];
-    let n = read_up_to(&mut reader, &mut buf).map_err(|e| SourceError::io(path, e))?;
-    buf.truncate(n);
+/// Up to `limit` bytes from the start of the (decompressed) text.
+fn sniff_text(path: &Path, compression: Compression, limit: usize) -> Result<Vec<u8>, SourceError> {
+    let reader = open_decompressed(path, compression)?.reader;
+    let mut buf = Vec::with_capacity(limit.min(SNIFF_BYTES));
+    reader.take(limit as u64).read_to_end(&mut buf).map_err(|e| SourceError::io(path, e))?;
     Ok(buf)
 }
 
@@ -327,6 +345,22 @@ mod tests {
         assert_eq!(format_of("a", b"[1,2]\n[3]\n"), Format::JsonLines);
         assert_eq!(format_of("a.json", b"\"just a string\""), Format::Json);
         assert_eq!(format_of("a.json", b"{\"a\":\"}\"}  \n"), Format::Json);
+    }
+
+    #[test]
+    fn json_lines_whose_first_record_outgrows_the_window_are_still_lines() {
+        let dir = tempfile::tempdir().unwrap();
+        let wide = format!("{{\"a\":\"{}\"}}\n{{\"a\":\"x\"}}\n", "y".repeat(2 * SNIFF_BYTES));
+        for name in ["wide.jsonl", "wide.txt", "wide.json"] {
+            let path = dir.path().join(name);
+            std::fs::write(&path, &wide).unwrap();
+            assert_eq!(detect(&path, None).unwrap().format, Format::JsonLines, "{name}");
+        }
+        // One large document stays a document.
+        let doc = format!("{{\"a\":\n\"{}\"}}\n", "y".repeat(2 * SNIFF_BYTES));
+        let path = dir.path().join("doc.json");
+        std::fs::write(&path, &doc).unwrap();
+        assert_eq!(detect(&path, None).unwrap().format, Format::Json);
     }
 
     #[test]
