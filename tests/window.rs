@@ -260,3 +260,39 @@ fn compare_shows_the_later_drop_beside_the_open_source() {
     // The Field tree marks the open source's changed fields, symbol and word.
     assert_eq!(h.get_all_by_label("~ type changed").count(), 2, "in the tree and in Compare");
 }
+
+#[test]
+fn recent_sources_and_the_theme_are_remembered_between_runs() {
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("window.json");
+    let start = |file: PathBuf, path: Option<PathBuf>| {
+        Harness::builder().with_size([1100.0, 720.0]).build_ui_state(
+            move |ui, app: &mut Option<PlumblineApp>| {
+                let app = app.get_or_insert_with(|| {
+                    let start = plumbline::gui::Start { path: path.clone(), ..Default::default() };
+                    PlumblineApp::start(ui.ctx().clone(), start, Some(file.clone()))
+                });
+                app.frame(ui);
+            },
+            None,
+        )
+    };
+    let mut first = start(file.clone(), Some(sample("deliveries.csv")));
+    wait_for_read(&mut first);
+    let dark_at_start = first.ctx.theme() == egui::Theme::Dark;
+    click(&mut first, if dark_at_start { "Light theme" } else { "Dark theme" });
+    first.state().as_ref().unwrap().save_settings(); // what closing the window does
+    let saved = plumbline::gui::settings::Settings::load(&file);
+    assert_eq!(saved.dark, Some(!dark_at_start));
+    assert!(saved.recent[0].ends_with("sample-data/deliveries.csv"), "{:?}", saved.recent);
+    assert!(saved.tree_width.is_some());
+
+    let mut second = start(file.clone(), None);
+    second.step();
+    second.step();
+    assert_eq!(second.ctx.theme() == egui::Theme::Dark, !dark_at_start, "theme restored");
+    click(&mut second, "Recent");
+    click(&mut second, "deliveries.csv");
+    wait_for_read(&mut second);
+    second.get_by_label_contains("CSV · ");
+}

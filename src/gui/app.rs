@@ -30,6 +30,8 @@ pub struct PlumblineApp {
     chosen: Option<Receiver<(Option<PathBuf>, bool)>>,
     /// The outcome of a save, which runs on its own thread.
     saved: Option<Receiver<Result<String, String>>>,
+    /// Where `state.settings` is kept; None keeps nothing (tests).
+    settings_file: Option<PathBuf>,
     ctx: egui::Context,
 }
 
@@ -48,6 +50,7 @@ impl PlumblineApp {
             compare_job: None,
             chosen: None,
             saved: None,
+            settings_file: None,
             ctx,
         };
         if let Some(path) = path {
@@ -56,9 +59,19 @@ impl PlumblineApp {
         app
     }
 
-    /// Opens with a field to select and an area to show once read.
-    pub fn start(ctx: egui::Context, start: super::Start) -> Self {
-        let mut app = PlumblineApp::new(ctx, start.path);
+    /// Opens with a field to select and an area to show once read,
+    /// remembering settings in `settings_file`.
+    pub fn start(ctx: egui::Context, start: super::Start, settings_file: Option<PathBuf>) -> Self {
+        let settings = settings_file.as_deref().map(super::settings::Settings::load).unwrap_or_default();
+        if let Some(dark) = settings.dark {
+            ctx.set_theme(if dark { egui::Theme::Dark } else { egui::Theme::Light });
+        }
+        let mut app = PlumblineApp::new(ctx, None);
+        app.state.settings = settings;
+        app.settings_file = settings_file;
+        if let Some(path) = start.path {
+            app.apply(Intent::Open(path));
+        }
         app.state.select_when_read = start.field;
         app.state.compare_when_read = start.compare;
         app.state.area = start.area;
@@ -68,6 +81,30 @@ impl PlumblineApp {
     /// True while a source is being read (tests wait on this).
     pub fn is_busy(&self) -> bool {
         self.job.is_some() || self.compare_job.is_some()
+    }
+
+    /// Writes the settings file, if there is one. A failure is only
+    /// reported on stderr: not remembering must never stop the work.
+    pub fn save_settings(&self) {
+        if let Some(file) = &self.settings_file
+            && let Err(e) = self.state.settings.save(file)
+        {
+            eprintln!("plumbline: cannot remember the window's settings: {e}");
+        }
+    }
+
+    /// Notes the theme and sizes now in use; saves when the theme changed.
+    fn note_layout(&mut self, ui: &egui::Ui, tree_width: f32) {
+        let dark = ui.ctx().theme() == egui::Theme::Dark;
+        let s = &mut self.state.settings;
+        s.tree_width = Some(tree_width);
+        if let Some(rect) = ui.ctx().input(|i| i.viewport().inner_rect) {
+            s.window = Some([rect.width(), rect.height()]);
+        }
+        if s.dark != Some(dark) {
+            s.dark = Some(dark);
+            self.save_settings();
+        }
     }
 
     /// Shows the native open dialog on its own thread.
@@ -100,6 +137,8 @@ impl PlumblineApp {
                 if let Some(job) = self.job.take() {
                     job.stop();
                 }
+                self.state.settings.remember(&path);
+                self.save_settings();
                 let ctx = self.ctx.clone();
                 self.state.reading = Some(Reading { path: path.clone(), progress: Default::default() });
                 self.state.message = None;
@@ -197,9 +236,11 @@ impl PlumblineApp {
         egui::Panel::top("source_bar").show(ui, |ui| {
             intents.extend(self.source_bar.show(ui, &self.state));
         });
-        egui::Panel::left("field_tree").resizable(true).default_size(420.0).min_size(340.0).show(ui, |ui| {
+        let tree_width = self.state.settings.tree_width.unwrap_or(420.0);
+        let tree = egui::Panel::left("field_tree").resizable(true).default_size(tree_width).min_size(340.0).show(ui, |ui| {
             intents.extend(self.field_tree.show(ui, &self.state));
         });
+        self.note_layout(ui, tree.response.rect.width());
         egui::CentralPanel::default().show(ui, |ui| {
             ui.horizontal(|ui| {
                 for area in Area::ALL {
@@ -246,5 +287,9 @@ fn poll_job(job: &mut Option<ScanJob>, reading: &mut Option<Reading>) -> Option<
 impl eframe::App for PlumblineApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.frame(ui);
+    }
+
+    fn on_exit(&mut self, _gl: Option<&eframe::glow::Context>) {
+        self.save_settings();
     }
 }

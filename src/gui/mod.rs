@@ -10,6 +10,7 @@ pub mod findings;
 pub mod highlight;
 pub mod palette;
 pub mod record_types;
+pub mod settings;
 pub mod source_bar;
 pub mod state;
 pub mod worker;
@@ -31,10 +32,12 @@ pub struct Start {
 
 /// Opens the window.
 pub fn run(start: Start) -> Result<(), String> {
+    let file = settings::Settings::default_file();
+    let size = file.as_deref().map(settings::Settings::load).and_then(|s| s.window).unwrap_or([1280.0, 800.0]);
     let options = eframe::NativeOptions {
         viewport: eframe::egui::ViewportBuilder::default()
             .with_title("Plumbline")
-            .with_inner_size([1280.0, 800.0])
+            .with_inner_size(size)
             .with_drag_and_drop(true),
         renderer: eframe::Renderer::Glow,
         ..Default::default()
@@ -42,7 +45,7 @@ pub fn run(start: Start) -> Result<(), String> {
     eframe::run_native(
         "Plumbline",
         options,
-        Box::new(move |cc| Ok(Box::new(PlumblineApp::start(cc.egui_ctx.clone(), start)))),
+        Box::new(move |cc| Ok(Box::new(PlumblineApp::start(cc.egui_ctx.clone(), start, file)))),
     )
     .map_err(|e| format!("cannot open the window: {e}"))
 }

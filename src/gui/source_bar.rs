@@ -15,6 +15,19 @@ impl SourceBar {
             if ui.button("Open…").on_hover_text("Open a file or a directory of part files").clicked() {
                 intents.push(Intent::ChooseFile);
             }
+            let recent = &state.settings.recent;
+            ui.add_enabled_ui(!recent.is_empty(), |ui| {
+                ui.menu_button("Recent", |ui| {
+                    for path in recent {
+                        if ui.button(path.display().to_string()).clicked() {
+                            intents.push(Intent::Open(path.clone()));
+                            ui.close();
+                        }
+                    }
+                })
+                .response
+                .on_hover_text("Sources opened before");
+            });
             let dark = ui.visuals().dark_mode;
             if ui.button(if dark { "Light theme" } else { "Dark theme" }).on_hover_text("Switch the window's colours").clicked() {
                 ui.ctx().set_theme(if dark { egui::Theme::Light } else { egui::Theme::Dark });

@@ -73,6 +73,8 @@ pub struct State {
     pub comparison: Option<Comparison>,
     /// Set while the second source is being read.
     pub compare_reading: Option<Reading>,
+    /// Remembered between runs (recent sources, theme, sizes).
+    pub settings: super::settings::Settings,
 }
 
 pub struct Comparison {
