@@ -41,6 +41,14 @@ pub fn listed(state: &State, sort: SortBy) -> Vec<Listed<'_>> {
     all
 }
 
+/// A column of fixed width, so the lines line up like a table.
+fn cell(ui: &mut egui::Ui, width: f32, body: impl FnOnce(&mut egui::Ui)) {
+    ui.allocate_ui_with_layout(egui::vec2(width, ui.available_height()), egui::Layout::left_to_right(egui::Align::Center), |ui| {
+        ui.set_min_width(width);
+        body(ui);
+    });
+}
+
 impl FindingsArea {
     pub fn show(&mut self, ui: &mut egui::Ui, state: &State) -> Vec<Intent> {
         let mut intents = Vec::new();
@@ -60,19 +68,28 @@ impl FindingsArea {
             ui.label("Nothing to report: no field met a finding's rule.");
             return intents;
         }
-        egui::ScrollArea::vertical().auto_shrink([false, false]).id_salt("findings").show(ui, |ui| {
-            egui::Grid::new("findings_table").num_columns(4).striped(true).spacing([14.0, 6.0]).show(ui, |ui| {
-                for l in &all {
+        // One line per finding, only those on screen laid out: a wide
+        // source can have a finding in each of thousands of fields.
+        let row_height = ui.text_style_height(&egui::TextStyle::Body) + 6.0;
+        egui::ScrollArea::both().auto_shrink([false, false]).id_salt("findings").show_rows(ui, row_height, all.len(), |ui, range| {
+            for l in &all[range] {
+                ui.horizontal(|ui| {
+                    ui.set_height(row_height);
                     let (colour, symbol) = palette::severity(ui.visuals(), l.severity);
-                    ui.colored_label(colour, format!("{symbol} {}", l.severity.label()));
-                    if ui.link(l.path).on_hover_text("Show this field").clicked() {
-                        intents.push(Intent::ShowField(l.path.to_string()));
-                    }
-                    ui.label(l.finding.kind.replace('_', " "));
+                    cell(ui, 90.0, |ui| {
+                        ui.colored_label(colour, format!("{symbol} {}", l.severity.label()));
+                    });
+                    cell(ui, 180.0, |ui| {
+                        if ui.link(l.path).on_hover_text("Show this field").clicked() {
+                            intents.push(Intent::ShowField(l.path.to_string()));
+                        }
+                    });
+                    cell(ui, 140.0, |ui| {
+                        ui.label(l.finding.kind.replace('_', " "));
+                    });
                     ui.label(&l.finding.message);
-                    ui.end_row();
-                }
-            });
+                });
+            }
         });
         intents
     }

@@ -1,6 +1,7 @@
 //! Frame times of the window, headless (egui_kittest): the Field tree of a
 //! 10,000-field source scrolled from top to bottom, filtered and walked with
-//! the arrow keys, beside the same window on a 20-field source. Reported
+//! the arrow keys, then each area right of it scrolled (Compare against the
+//! source itself), beside the same window on a 20-field source. Reported
 //! against the 16 ms a frame may take at 60 frames a second.
 //!
 //! `cargo bench --bench frames`
@@ -11,6 +12,7 @@ use std::time::{Duration, Instant};
 use eframe::egui;
 use egui_kittest::Harness;
 use plumbline::gui::PlumblineApp;
+use plumbline::gui::state::{Area, Intent};
 
 /// One JSON Lines row of `fields` fields: 100 objects of `fields / 100`
 /// numbers each (nested, as wide real sources are).
@@ -87,6 +89,37 @@ fn frame_times(h: &mut Window) -> Vec<Duration> {
     times
 }
 
+/// Times frames of each area right of the tree, with the source compared
+/// against itself for Compare.
+fn area_frame_times(h: &mut Window, path: &Path) -> Vec<(Area, Vec<Duration>)> {
+    h.state_mut().as_mut().unwrap().apply(Intent::OpenCompare(path.to_path_buf()));
+    wait_for_read(h);
+    h.hover_at(egui::pos2(800.0, 400.0));
+    let mut out = Vec::new();
+    for area in Area::ALL {
+        h.state_mut().as_mut().unwrap().apply(Intent::ShowArea(area));
+        if area == Area::FieldSheet {
+            let first = h.state().as_ref().unwrap().state.report.as_ref().and_then(|r| r.fields.last()).map(|f| f.path.clone());
+            h.state_mut().as_mut().unwrap().state.selected = first;
+        }
+        let mut times = Vec::new();
+        for _ in 0..40 {
+            h.event(egui::Event::MouseWheel {
+                unit: egui::MouseWheelUnit::Point,
+                delta: egui::vec2(0.0, -400.0),
+                phase: egui::TouchPhase::Move,
+                source: egui::MouseWheelSource::Wheel,
+                modifiers: Default::default(),
+            });
+            let start = Instant::now();
+            h.step();
+            times.push(start.elapsed());
+        }
+        out.push((area, times));
+    }
+    out
+}
+
 fn describe(name: &str, mut times: Vec<Duration>) -> (Duration, Duration) {
     times.sort();
     let median = times[times.len() / 2];
@@ -106,11 +139,15 @@ fn main() {
     println!("Window frame times, headless (egui_kittest), Field tree scrolled, walked and filtered:");
     let mut medians = Vec::new();
     for fields in [20, 10_000] {
-        let mut h = window(wide_source(dir.path(), fields));
+        let path = wide_source(dir.path(), fields);
+        let mut h = window(path.clone());
         wait_for_read(&mut h);
         let shown = h.state().as_ref().unwrap().state.report.as_ref().map_or(0, |r| r.fields.len());
         let (median, _) = describe(&format!("{shown} fields"), frame_times(&mut h));
         medians.push(median);
+        for (area, times) in area_frame_times(&mut h, &path) {
+            describe(&format!("  {}", area.label()), times);
+        }
     }
     println!("  ratio of medians, 10,000 fields / 20 fields: {:.2}", medians[1].as_secs_f64() / medians[0].as_secs_f64());
 }
