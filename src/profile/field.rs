@@ -103,20 +103,7 @@ impl FieldStats {
     }
 
     pub fn add_instant(&mut self, secs: i64) {
-        let future = (secs > profile_started()) as u64;
-        let limit = self.budget.sample;
-        let i = self.instants.get_or_insert_with(|| Instants {
-            min: secs,
-            max: secs,
-            count: 0,
-            future: 0,
-            seconds: NumberStats::with_limit(limit),
-        });
-        i.min = i.min.min(secs);
-        i.max = i.max.max(secs);
-        i.count += 1;
-        i.future += future;
-        i.seconds.add(secs as f64);
+        self.add_instants(&[secs]);
     }
 
     pub fn add_number(&mut self, x: f64) {

@@ -56,6 +56,17 @@ fn wait_for_read(h: &mut Window) {
     h.step();
 }
 
+/// One wheel step down, wherever the pointer is.
+fn scroll_down(h: &mut Window) {
+    h.event(egui::Event::MouseWheel {
+        unit: egui::MouseWheelUnit::Point,
+        delta: egui::vec2(0.0, -400.0),
+        phase: egui::TouchPhase::Move,
+        source: egui::MouseWheelSource::Wheel,
+        modifiers: Default::default(),
+    });
+}
+
 /// Times each frame while the tree scrolls down by wheel steps, then while
 /// the selection walks down with the arrow key.
 fn frame_times(h: &mut Window) -> Vec<Duration> {
@@ -67,13 +78,7 @@ fn frame_times(h: &mut Window) -> Vec<Duration> {
     };
     h.hover_at(egui::pos2(150.0, 400.0));
     for _ in 0..300 {
-        h.event(egui::Event::MouseWheel {
-            unit: egui::MouseWheelUnit::Point,
-            delta: egui::vec2(0.0, -400.0),
-            phase: egui::TouchPhase::Move,
-            source: egui::MouseWheelSource::Wheel,
-            modifiers: Default::default(),
-        });
+        scroll_down(h);
         timed(h);
     }
     for _ in 0..100 {
@@ -104,13 +109,7 @@ fn area_frame_times(h: &mut Window, path: &Path) -> Vec<(Area, Vec<Duration>)> {
         }
         let mut times = Vec::new();
         for _ in 0..40 {
-            h.event(egui::Event::MouseWheel {
-                unit: egui::MouseWheelUnit::Point,
-                delta: egui::vec2(0.0, -400.0),
-                phase: egui::TouchPhase::Move,
-                source: egui::MouseWheelSource::Wheel,
-                modifiers: Default::default(),
-            });
+            scroll_down(h);
             let start = Instant::now();
             h.step();
             times.push(start.elapsed());
