@@ -17,7 +17,12 @@ pub enum SortBy {
 #[derive(Default)]
 pub struct FindingsArea {
     pub sort: SortBy,
+    /// The order for (scan generation, sort), kept until either changes.
+    order: Option<((u64, SortBy), Vec<Place>)>,
 }
+
+/// Where a finding sits in the report: (field index, finding index).
+type Place = (usize, usize);
 
 /// One finding with the field it belongs to.
 pub struct Listed<'a> {
@@ -26,19 +31,28 @@ pub struct Listed<'a> {
     pub finding: &'a crate::profile::findings::Finding,
 }
 
-/// Every finding of the report, in the chosen order (ties keep the field order).
-pub fn listed(state: &State, sort: SortBy) -> Vec<Listed<'_>> {
-    let mut all: Vec<Listed> = state
-        .report
-        .iter()
-        .flat_map(|r| &r.fields)
-        .flat_map(|f| f.findings.iter().flatten().map(move |finding| Listed { path: &f.path, severity: finding.severity(), finding }))
-        .collect();
+fn listed_at(state: &State, (field, finding): Place) -> Option<Listed<'_>> {
+    let f = state.report.as_ref()?.fields.get(field)?;
+    let finding = f.findings.as_ref()?.get(finding)?;
+    Some(Listed { path: &f.path, severity: finding.severity(), finding })
+}
+
+/// The places of every finding of the report, in the chosen order (ties
+/// keep the field order).
+fn order(state: &State, sort: SortBy) -> Vec<Place> {
+    let fields = state.report.as_ref().map_or(&[][..], |r| &r.fields[..]);
+    let mut all: Vec<Place> =
+        fields.iter().enumerate().flat_map(|(i, f)| (0..f.findings.as_ref().map_or(0, Vec::len)).map(move |j| (i, j))).collect();
     match sort {
-        SortBy::Severity => all.sort_by_key(|l| l.severity),
-        SortBy::Field => all.sort_by(|a, b| a.path.cmp(b.path)),
+        SortBy::Severity => all.sort_by_key(|&(i, j)| fields[i].findings.as_ref().map(|f| f[j].severity())),
+        SortBy::Field => all.sort_by(|a, b| fields[a.0].path.cmp(&fields[b.0].path)),
     }
     all
+}
+
+/// Every finding of the report, in the chosen order (ties keep the field order).
+pub fn listed(state: &State, sort: SortBy) -> Vec<Listed<'_>> {
+    order(state, sort).into_iter().filter_map(|p| listed_at(state, p)).collect()
 }
 
 /// A column of fixed width, so the lines line up like a table.
@@ -56,7 +70,11 @@ impl FindingsArea {
             ui.weak("Findings appear here once a source is open.");
             return intents;
         }
-        let all = listed(state, self.sort);
+        let key = (state.generation, self.sort);
+        if self.order.as_ref().is_none_or(|(k, _)| *k != key) {
+            self.order = Some((key, order(state, self.sort)));
+        }
+        let all = self.order.as_ref().map_or(&[][..], |(_, o)| &o[..]);
         ui.horizontal(|ui| {
             ui.heading(format!("{} finding{}", all.len(), if all.len() == 1 { "" } else { "s" }));
             ui.separator();
@@ -72,7 +90,7 @@ impl FindingsArea {
         // source can have a finding in each of thousands of fields.
         let row_height = ui.text_style_height(&egui::TextStyle::Body) + 6.0;
         egui::ScrollArea::both().auto_shrink([false, false]).id_salt("findings").show_rows(ui, row_height, all.len(), |ui, range| {
-            for l in &all[range] {
+            for l in all[range].iter().filter_map(|&p| listed_at(state, p)) {
                 ui.horizontal(|ui| {
                     ui.set_height(row_height);
                     let (colour, symbol) = palette::severity(ui.visuals(), l.severity);

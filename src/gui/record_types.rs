@@ -1,7 +1,10 @@
 //! Record types: pick a target and the generator's options, read the
 //! highlighted code, copy or save it, and see how it fits the rows read.
 
+use std::sync::Arc;
+
 use eframe::egui;
+use eframe::egui::text::LayoutJob;
 
 use super::highlight;
 use super::state::{Intent, State};
@@ -16,8 +19,12 @@ pub struct RecordTypes {
     /// The root type's name; empty means the name from the file.
     pub root: String,
     /// Code generated for (scan generation, choices), kept until either changes.
-    cache: Option<((u64, Choices), Generated)>,
+    cache: Option<(CodeKey, Generated)>,
+    /// That code laid out in colour, for the theme (dark or not) it was made for.
+    coloured: Option<((CodeKey, bool), Arc<LayoutJob>)>,
 }
+
+type CodeKey = (u64, Choices);
 
 type Choices = (Lang, Optionality, MixedChoice, TimeChoice, String);
 
@@ -30,6 +37,7 @@ impl Default for RecordTypes {
             time: TimeChoice::default(),
             root: String::new(),
             cache: None,
+            coloured: None,
         }
     }
 }
@@ -55,7 +63,11 @@ impl RecordTypes {
         };
         self.choices(ui, scan);
         let lang = self.lang;
-        let Some(generated) = self.generated(state).cloned() else { return intents };
+        if self.generated(state).is_none() {
+            return intents;
+        }
+        let job = self.highlighted(ui);
+        let Some((_, generated)) = &self.cache else { return intents };
         ui.horizontal(|ui| {
             if ui.button("Copy").on_hover_text("Copy the code to the clipboard").clicked() {
                 ui.ctx().copy_text(generated.code.clone());
@@ -65,18 +77,36 @@ impl RecordTypes {
                 intents.push(Intent::SaveText { text: generated.code.clone(), file_name: format!("{stem}.{}", lang.extension()) });
             }
             ui.separator();
-            ui.label(fit_line(scan, &generated, lang));
+            ui.label(fit_line(scan, generated, lang));
         });
         for w in &generated.warnings {
             ui.colored_label(ui.visuals().warn_fg_color, format!("▲ {w}"));
         }
         ui.separator();
-        let font = egui::TextStyle::Monospace.resolve(ui.style());
-        let job = highlight::layout(&generated.code, lang, ui.visuals(), font);
         egui::ScrollArea::both().auto_shrink([false, false]).id_salt("record_types_code").show(ui, |ui| {
             ui.add(egui::Label::new(job).selectable(true).extend());
         });
         intents
+    }
+
+    /// The cached code, coloured for the current theme (laid out again
+    /// only when the code or the theme changes, not every frame).
+    fn highlighted(&mut self, ui: &egui::Ui) -> Arc<LayoutJob> {
+        let dark = ui.visuals().dark_mode;
+        let code_key = self.cache.as_ref().map(|(k, _)| k.clone());
+        if let Some(((k, d), job)) = &self.coloured
+            && Some(k) == code_key.as_ref()
+            && *d == dark
+        {
+            return job.clone();
+        }
+        let code = self.cache.as_ref().map_or("", |(_, g)| g.code.as_str());
+        let font = egui::TextStyle::Monospace.resolve(ui.style());
+        let job = Arc::new(highlight::layout(code, self.lang, ui.visuals(), font));
+        if let Some(key) = code_key {
+            self.coloured = Some(((key, dark), job.clone()));
+        }
+        job
     }
 
     fn choices(&mut self, ui: &mut egui::Ui, scan: &crate::scan::Scan) {

@@ -102,8 +102,27 @@ impl FieldStats {
         self.list_lengths.get_or_insert_with(|| NumberStats::with_limit(limit)).add(n as f64);
     }
 
+    /// One instant (JSON and CSV text, one value at a time).
     pub fn add_instant(&mut self, secs: i64) {
-        self.add_instants(&[secs]);
+        let i = self.instants_spanning(secs, secs);
+        i.count += 1;
+        i.future += (secs > profile_started()) as u64;
+        i.seconds.add(secs as f64);
+    }
+
+    /// The instants kept, widened to `lo..=hi`.
+    fn instants_spanning(&mut self, lo: i64, hi: i64) -> &mut Instants {
+        let limit = self.budget.sample;
+        let i = self.instants.get_or_insert_with(|| Instants {
+            min: lo,
+            max: hi,
+            count: 0,
+            future: 0,
+            seconds: NumberStats::with_limit(limit),
+        });
+        i.min = i.min.min(lo);
+        i.max = i.max.max(hi);
+        i
     }
 
     pub fn add_number(&mut self, x: f64) {
@@ -120,20 +139,11 @@ impl FieldStats {
         self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).add_slice(xs);
     }
 
-    /// A run of instants, in epoch seconds.
+    /// A run of instants, in epoch seconds (an Arrow array's present values).
     pub fn add_instants(&mut self, secs: &[i64]) {
         let (Some(&lo), Some(&hi)) = (secs.iter().min(), secs.iter().max()) else { return };
         let now = profile_started();
-        let limit = self.budget.sample;
-        let i = self.instants.get_or_insert_with(|| Instants {
-            min: lo,
-            max: hi,
-            count: 0,
-            future: 0,
-            seconds: NumberStats::with_limit(limit),
-        });
-        i.min = i.min.min(lo);
-        i.max = i.max.max(hi);
+        let i = self.instants_spanning(lo, hi);
         i.count += secs.len() as u64;
         i.future += secs.iter().filter(|&&s| s > now).count() as u64;
         let as_f64: Vec<f64> = secs.iter().map(|&s| s as f64).collect();

@@ -97,18 +97,44 @@ pub fn detect(path: &Path, forced: Option<FormatChoice>) -> Result<Detected, Sou
     if compression == Compression::None && matches!(extension_of(path).as_str(), "arrows" | "stream") {
         return Ok(Detected { format: Format::ArrowStream, compression });
     }
-    let text = sniff_text(path, compression, SNIFF_BYTES)?;
+    let text = sniff_text(path, compression)?;
     let mut format = text_format(path, &text)?;
-    if format == Format::Json && text.len() == SNIFF_BYTES && first_value_unfinished(&text) {
-        // The first value outgrows the window (a wide JSON Lines record):
-        // look as far as one record may be long before deciding.
-        let longer = sniff_text(path, compression, super::limits::MAX_RECORD_BYTES + SNIFF_BYTES)?;
-        format = text_format(path, &longer)?;
-        if format == Format::Json && first_value_unfinished(&longer) && matches!(extension_of(path).as_str(), "jsonl" | "ndjson") {
-            format = Format::JsonLines;
-        }
+    if format == Format::Json && text.len() == SNIFF_BYTES && !text.contains(&b'\n') && first_value_unfinished(&text) {
+        // One line longer than the window: a wide JSON Lines record or a
+        // one-line document. (A first value spanning lines is a document.)
+        format = after_long_first_line(path, compression)?;
     }
     Ok(Detected { format, compression })
+}
+
+/// Streams past the first value (as far as one record may be long), a
+/// window at a time, and decides by what follows it.
+fn after_long_first_line(path: &Path, compression: Compression) -> Result<Format, SourceError> {
+    let mut reader = open_decompressed(path, compression)?.reader;
+    let mut scan = FirstValue::default();
+    let mut buf = vec![0u8; SNIFF_BYTES];
+    let mut read = 0usize;
+    while read <= super::limits::MAX_RECORD_BYTES {
+        let n = read_up_to(&mut reader, &mut buf).map_err(|e| SourceError::io(path, e))?;
+        if n == 0 {
+            return Ok(Format::Json);
+        }
+        read += n;
+        match scan.feed(&buf[..n]) {
+            Step::Ended(end) => {
+                // What follows the value: the rest of this window and the next.
+                let mut rest = buf[end..n].to_vec();
+                let mut more = vec![0u8; SNIFF_BYTES];
+                let m = read_up_to(&mut reader, &mut more).map_err(|e| SourceError::io(path, e))?;
+                rest.extend_from_slice(&more[..m]);
+                return Ok(after_first_value(&rest));
+            }
+            Step::Broken => return Ok(Format::Json),
+            Step::More => {}
+        }
+    }
+    let lines = matches!(extension_of(path).as_str(), "jsonl" | "ndjson");
+    Ok(if lines { Format::JsonLines } else { Format::Json })
 }
 
 /// True when `text` starts a bracketed JSON value that does not end in it.
@@ -186,7 +212,7 @@ fn check_forced(
             if let Some(b) = binary {
                 return Err(wrong(format, format!("it is a {} file", b.label())));
             }
-            let text = sniff_text(path, compression, SNIFF_BYTES)?;
+            let text = sniff_text(path, compression)?;
             if !is_text(&text) {
                 return Err(wrong(format, "it holds binary data (NUL bytes or invalid UTF-8)".into()));
             }
@@ -196,11 +222,11 @@ fn check_forced(
     Ok(Detected { format, compression })
 }
 
-/// Up to `limit` bytes from the start of the (decompressed) text.
-fn sniff_text(path: &Path, compression: Compression, limit: usize) -> Result<Vec<u8>, SourceError> {
-    let reader = open_decompressed(path, compression)?.reader;
-    let mut buf = Vec::with_capacity(limit.min(SNIFF_BYTES));
-    reader.take(limit as u64).read_to_end(&mut buf).map_err(|e| SourceError::io(path, e))?;
+fn sniff_text(path: &Path, compression: Compression) -> Result<Vec<u8>, SourceError> {
+    let mut reader = open_decompressed(path, compression)?.reader;
+    let mut buf = vec![0u8; SNIFF_BYTES];
+    let n = read_up_to(&mut reader, &mut buf).map_err(|e| SourceError::io(path, e))?;
+    buf.truncate(n);
     Ok(buf)
 }
 
@@ -271,10 +297,15 @@ pub fn strip_bom(bytes: &[u8]) -> &[u8] {
 /// JSON Lines when the first value ends on its line and another value
 /// starts on a later line; otherwise a single JSON document.
 fn json_or_lines(text: &[u8]) -> Format {
-    let Some(end) = end_of_first_value(text) else {
-        return Format::Json; // the first value is larger than the sniffed window
-    };
-    let rest = &text[end..];
+    match end_of_first_value(text) {
+        Some(end) => after_first_value(&text[end..]),
+        None => Format::Json, // the first value is larger than the sniffed window
+    }
+}
+
+/// Decides by what follows the first value: another value on a later line
+/// makes JSON Lines.
+fn after_first_value(rest: &[u8]) -> Format {
     let Some(next) = rest.iter().position(|&b| !is_json_ws(b)) else {
         return Format::Json;
     };
@@ -286,32 +317,55 @@ fn json_or_lines(text: &[u8]) -> Format {
 /// Byte offset just past the first bracketed value, tracking strings so
 /// brackets inside them do not count.
 fn end_of_first_value(text: &[u8]) -> Option<usize> {
-    let mut depth = 0usize;
-    let mut in_string = false;
-    let mut escaped = false;
-    for (i, &b) in text.iter().enumerate() {
-        if in_string {
-            match (escaped, b) {
-                (true, _) => escaped = false,
-                (false, b'\\') => escaped = true,
-                (false, b'"') => in_string = false,
+    match FirstValue::default().feed(text) {
+        Step::Ended(end) => Some(end),
+        Step::Broken | Step::More => None,
+    }
+}
+
+/// Where the first bracketed value ends, fed a window at a time.
+#[derive(Default)]
+struct FirstValue {
+    depth: usize,
+    in_string: bool,
+    escaped: bool,
+}
+
+enum Step {
+    /// Ends just before this offset of the window fed.
+    Ended(usize),
+    /// A closing bracket with none open: not JSON Lines.
+    Broken,
+    More,
+}
+
+impl FirstValue {
+    fn feed(&mut self, window: &[u8]) -> Step {
+        for (i, &b) in window.iter().enumerate() {
+            if self.in_string {
+                match (self.escaped, b) {
+                    (true, _) => self.escaped = false,
+                    (false, b'\\') => self.escaped = true,
+                    (false, b'"') => self.in_string = false,
+                    _ => {}
+                }
+                continue;
+            }
+            match b {
+                b'"' => self.in_string = true,
+                b'{' | b'[' => self.depth += 1,
+                b'}' | b']' => {
+                    let Some(depth) = self.depth.checked_sub(1) else { return Step::Broken };
+                    self.depth = depth;
+                    if depth == 0 {
+                        return Step::Ended(i + 1);
+                    }
+                }
                 _ => {}
             }
-            continue;
         }
-        match b {
-            b'"' => in_string = true,
-            b'{' | b'[' => depth += 1,
-            b'}' | b']' => {
-                depth = depth.checked_sub(1)?;
-                if depth == 0 {
-                    return Some(i + 1);
-                }
-            }
-            _ => {}
-        }
+        Step::More
     }
-    None
 }
 
 #[cfg(test)]
@@ -356,11 +410,18 @@ mod tests {
             std::fs::write(&path, &wide).unwrap();
             assert_eq!(detect(&path, None).unwrap().format, Format::JsonLines, "{name}");
         }
-        // One large document stays a document.
-        let doc = format!("{{\"a\":\n\"{}\"}}\n", "y".repeat(2 * SNIFF_BYTES));
-        let path = dir.path().join("doc.json");
-        std::fs::write(&path, &doc).unwrap();
-        assert_eq!(detect(&path, None).unwrap().format, Format::Json);
+        // Gzipped, the same.
+        let path = dir.path().join("wide.jsonl.gz");
+        let mut gz = flate2::write::GzEncoder::new(Vec::new(), flate2::Compression::fast());
+        std::io::Write::write_all(&mut gz, wide.as_bytes()).unwrap();
+        std::fs::write(&path, gz.finish().unwrap()).unwrap();
+        assert_eq!(detect(&path, None).unwrap().format, Format::JsonLines);
+        // One large document stays a document, on many lines or on one.
+        for doc in [format!("{{\"a\":\n\"{}\"}}\n", "y".repeat(2 * SNIFF_BYTES)), format!("[\"{}\", 1]  ", "y".repeat(2 * SNIFF_BYTES))] {
+            let path = dir.path().join("doc.json");
+            std::fs::write(&path, &doc).unwrap();
+            assert_eq!(detect(&path, None).unwrap().format, Format::Json);
+        }
     }
 
     #[test]
