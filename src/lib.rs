@@ -6,6 +6,7 @@
 
 pub mod cli;
 pub mod compare;
+pub mod explore;
 pub mod format;
 pub mod gui;
 pub mod path;

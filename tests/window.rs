@@ -6,7 +6,7 @@ use std::time::{Duration, Instant};
 
 use eframe::egui;
 use egui_kittest::Harness;
-use egui_kittest::kittest::Queryable;
+use egui_kittest::kittest::{NodeT, Queryable};
 use plumbline::gui::PlumblineApp;
 use plumbline::gui::state::Intent;
 
@@ -15,7 +15,12 @@ fn sample(name: &str) -> PathBuf {
 }
 
 fn window(path: PathBuf) -> Harness<'static, Option<PlumblineApp>> {
-    Harness::builder().with_size([1100.0, 720.0]).build_ui_state(
+    window_sized(path, 720.0)
+}
+
+/// A window `height` points tall (a tall one shows a whole Field sheet).
+fn window_sized(path: PathBuf, height: f32) -> Harness<'static, Option<PlumblineApp>> {
+    Harness::builder().with_size([1100.0, height]).build_ui_state(
         move |ui, app: &mut Option<PlumblineApp>| {
             let app = app.get_or_insert_with(|| PlumblineApp::new(ui.ctx().clone(), Some(path.clone())));
             app.frame(ui);
@@ -115,8 +120,11 @@ fn the_stop_button_stops_the_read_and_the_result_is_marked_partial() {
     assert!(scan.shape.rows < 1_500_000, "{} rows", scan.shape.rows);
 }
 
-/// Clicks the first widget whose label contains `text`, then lets a frame pass.
+/// Clicks the first widget whose label contains `text`, then lets a frame
+/// pass. A frame first: a grid or table shown for the first time lays
+/// itself out once without taking clicks.
 fn click(h: &mut Harness<'static, Option<PlumblineApp>>, text: &str) {
+    h.step();
     h.get_by_label_contains(text).click();
     h.step();
     h.step();
@@ -153,7 +161,7 @@ fn a_nested_field_shows_its_statistics_in_the_field_sheet() {
 
 #[test]
 fn findings_list_every_finding_and_jump_to_the_field() {
-    let mut h = window(sample("deliveries.parquet"));
+    let mut h = window_sized(sample("deliveries.parquet"), 1400.0);
     wait_for_read(&mut h);
     click(&mut h, "Findings");
     let count = plumbline::gui::findings::listed(&app(&h).state, Default::default()).len();
@@ -169,7 +177,14 @@ fn findings_list_every_finding_and_jump_to_the_field() {
     h.step();
     assert_eq!(app(&h).state.selected.as_deref(), Some("distance_km"));
     assert_eq!(app(&h).state.area, plumbline::gui::state::Area::FieldSheet);
-    h.get_by_label_contains("far outliers");
+    // The finding's rows: as many as it says lie beyond the fences.
+    let entry = app(&h).state.selected_entry().unwrap();
+    let finding = entry.findings.as_ref().unwrap().iter().find(|f| f.kind == "far_outliers").unwrap();
+    let (said, message): (u64, String) = (finding.message.split(' ').next().unwrap().parse().unwrap(), finding.message.clone());
+    click(&mut h, "Show the rows behind far outliers");
+    wait_for_read(&mut h);
+    assert_eq!(app(&h).state.area, plumbline::gui::state::Area::Rows);
+    assert_eq!(app(&h).rows.kept_rows(), Some(said), "{message}");
 }
 
 /// Opens the Target picker (showing `from`) and picks `to`.
@@ -295,4 +310,61 @@ fn recent_sources_and_the_theme_are_remembered_between_runs() {
     click(&mut second, "deliveries.csv");
     wait_for_read(&mut second);
     second.get_by_label_contains("CSV · ");
+}
+
+#[test]
+fn a_histogram_bar_filters_rows_and_the_chip_removes_the_filter() {
+    let mut h = window_sized(sample("deliveries.parquet"), 1400.0);
+    wait_for_read(&mut h);
+    click(&mut h, "distance_km   float64");
+    let bar = h.get_by_label_contains("bar 2: ");
+    let label = bar.accesskit_node().label().unwrap_or_default().to_string();
+    let counted: u64 = label.rsplit(", ").next().unwrap().replace(',', "").parse().unwrap();
+    bar.click();
+    h.step();
+    wait_for_read(&mut h);
+    assert_eq!(app(&h).state.area, plumbline::gui::state::Area::Rows);
+    assert_eq!(app(&h).rows.kept_rows(), Some(counted), "{label}");
+    h.get_by_label(&format!("{} of 3,000 rows match", plumbline::format::group_digits(counted)));
+    // The rows on screen are rows of that bar: their numbers came from polars.
+    h.get_by_label("row");
+    h.get_by_label("distance_km");
+    let chip = h.get_by_label_contains("distance_km in [");
+    chip.click();
+    h.step();
+    wait_for_read(&mut h);
+    assert!(app(&h).state.row_filters.is_empty());
+    assert_eq!(app(&h).rows.kept_rows(), Some(3000));
+    h.get_by_label("3,000 rows");
+}
+
+#[test]
+fn a_top_value_and_the_nulls_filter_rows_and_a_nested_cell_opens() {
+    let mut h = window(sample("deliveries.parquet"));
+    wait_for_read(&mut h);
+    click(&mut h, "vehicle   utf8");
+    click(&mut h, "e-trike");
+    wait_for_read(&mut h);
+    let filters = &app(&h).state.row_filters;
+    assert_eq!(filters.len(), 1);
+    assert_eq!(filters[0].label(), "courier.vehicle = \"e-trike\"");
+    let trikes = app(&h).rows.kept_rows().unwrap();
+    assert!(trikes > 0 && trikes < 3000);
+    // A second filter narrows further: the dropoff nulls.
+    h.state_mut().as_mut().unwrap().apply(Intent::Select("dropoff".into()));
+    h.state_mut().as_mut().unwrap().apply(Intent::ShowArea(plumbline::gui::state::Area::FieldSheet));
+    h.step();
+    click(&mut h, "show these rows");
+    wait_for_read(&mut h);
+    assert_eq!(app(&h).state.row_filters.len(), 2, "{:?} {:?}", app(&h).state.row_filters, app(&h).state.area);
+    assert!(app(&h).rows.kept_rows().unwrap() < trikes);
+    h.get_by_label_contains("dropoff is null");
+    h.get_by_label("remove all");
+    // A struct cell opens to its whole value.
+    h.step();
+    h.get_all_by_label_contains("{code: \"QC-").next().expect("a courier cell").click();
+    h.step();
+    h.step();
+    h.get_by_label_contains("\n  code: \"QC-");
+    h.get_by_label("Close");
 }

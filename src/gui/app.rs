@@ -10,6 +10,7 @@ use super::field_sheet::FieldSheet;
 use super::field_tree::FieldTree;
 use super::findings::FindingsArea;
 use super::record_types::RecordTypes;
+use super::rows::RowsArea;
 use super::source_bar::SourceBar;
 use super::state::{Area, Intent, Reading, State};
 use super::worker::{JobMessage, ScanJob};
@@ -21,6 +22,7 @@ pub struct PlumblineApp {
     field_sheet: FieldSheet,
     findings: FindingsArea,
     pub record_types: RecordTypes,
+    pub rows: RowsArea,
     compare: CompareArea,
     job: Option<ScanJob>,
     /// Reads the second source of Compare.
@@ -45,6 +47,7 @@ impl PlumblineApp {
             field_sheet: FieldSheet,
             findings: FindingsArea::default(),
             record_types: RecordTypes::default(),
+            rows: RowsArea::default(),
             compare: CompareArea::default(),
             job: None,
             compare_job: None,
@@ -78,9 +81,9 @@ impl PlumblineApp {
         app
     }
 
-    /// True while a source is being read (tests wait on this).
+    /// True while a source is being read or Rows waits for rows (tests wait on this).
     pub fn is_busy(&self) -> bool {
-        self.job.is_some() || self.compare_job.is_some()
+        self.job.is_some() || self.compare_job.is_some() || self.rows.is_waiting()
     }
 
     /// Writes the settings file, if there is one. A failure is only
@@ -170,6 +173,22 @@ impl PlumblineApp {
                 });
                 self.saved = Some(rx);
             }
+            Intent::AddRowFilter(filter) => {
+                let mut filters = self.state.row_filters.clone();
+                if !filters.contains(&filter) {
+                    filters.push(filter);
+                }
+                self.state.set_row_filters(filters);
+                self.state.area = Area::Rows;
+            }
+            Intent::RemoveRowFilter(index) => {
+                let mut filters = self.state.row_filters.clone();
+                if index < filters.len() {
+                    filters.remove(index);
+                }
+                self.state.set_row_filters(filters);
+            }
+            Intent::ClearRowFilters => self.state.set_row_filters(Vec::new()),
             Intent::DismissMessage => {
                 self.state.message = None;
                 self.state.notice = None;
@@ -252,6 +271,7 @@ impl PlumblineApp {
             ui.separator();
             intents.extend(match self.state.area {
                 Area::FieldSheet => self.field_sheet.show(ui, &self.state),
+                Area::Rows => self.rows.show(ui, &self.state),
                 Area::Findings => self.findings.show(ui, &self.state),
                 Area::RecordTypes => self.record_types.show(ui, &self.state),
                 Area::Compare => self.compare.show(ui, &self.state),

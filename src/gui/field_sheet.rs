@@ -6,6 +6,7 @@ use eframe::egui;
 
 use super::palette;
 use super::state::{Intent, State};
+use crate::explore::{Condition, RowFilter};
 use crate::format::{decimal, group_digits, share};
 use crate::profile::numbers::Histogram;
 use crate::report::{FieldEntry, StatsEntry};
@@ -19,26 +20,44 @@ impl FieldSheet {
             ui.weak(if state.scan.is_some() { "Select a field in the Field tree." } else { "Open a source to see its fields." });
             return Vec::new();
         };
+        let mut filter = None;
         egui::ScrollArea::vertical().auto_shrink([false, false]).id_salt("field_sheet").show(ui, |ui| {
-            show_field(ui, field);
+            filter = show_field(ui, field);
         });
-        Vec::new()
+        filter.map(Intent::AddRowFilter).into_iter().collect()
     }
 }
 
-fn show_field(ui: &mut egui::Ui, field: &FieldEntry) {
+/// Draws the sheet; returns the rows filter the user clicked, if any.
+fn show_field(ui: &mut egui::Ui, field: &FieldEntry) -> Option<RowFilter> {
+    let mut clicked = None;
+    let on_field = |condition| RowFilter::Field { path: field.path.clone(), condition };
     ui.heading(&field.path);
     types_section(ui, field);
     ui.separator();
-    section(ui, "Statistics", |ui| statistics_grid(ui, field));
+    section(ui, "Statistics", |ui| {
+        if statistics_grid(ui, field) {
+            clicked = Some(on_field(Condition::Empty));
+        }
+    });
     if let Some(stats) = &field.stats {
         if let Some(h) = &stats.histogram {
-            section(ui, "Histogram", |ui| numeric_histogram(ui, "histogram", h));
+            section(ui, "Histogram", |ui| {
+                if let Some(i) = numeric_histogram(ui, "histogram", h, true) {
+                    let (low, high) = (h.edges[i], h.edges[i + 1]);
+                    // numpy's convention: the last bin holds its right edge.
+                    let high_inclusive = i + 2 == h.edges.len();
+                    clicked = Some(on_field(Condition::Between { low, high, high_inclusive }));
+                }
+            });
         }
         if let Some(c) = &stats.calendar {
             let bars: Vec<(String, u64)> = c.buckets.iter().map(|b| (b.label.clone(), b.count)).collect();
             section(ui, &format!("Over time (by {:?}{})", c.unit, if c.exact { "" } else { ", estimated" }).to_lowercase(), |ui| {
-                bar_chart(ui, "calendar", &bars)
+                if let Some(i) = bar_chart(ui, "calendar", &bars, true) {
+                    let b = &c.buckets[i];
+                    clicked = Some(on_field(Condition::During { start: b.start, end: b.end }));
+                }
             });
         }
         if let Some(top) = stats.top.as_ref().filter(|t| !t.is_empty()) {
@@ -46,8 +65,8 @@ fn show_field(ui: &mut egui::Ui, field: &FieldEntry) {
                 // A list of values seen once each says nothing about frequency.
                 if top.iter().all(|t| t.count == 1) && stats.top_exact != Some(false) {
                     ui.label("Every value appears once.");
-                } else {
-                    top_values(ui, field, stats, top);
+                } else if let Some(value) = top_values(ui, field, stats, top) {
+                    clicked = Some(on_field(Condition::OneOf(vec![value])));
                 }
             });
         }
@@ -72,9 +91,15 @@ fn show_field(ui: &mut egui::Ui, field: &FieldEntry) {
                         ui.monospace(e);
                     });
                 }
+                if let Some(filter) = RowFilter::behind_finding(&field.path, &f.behind)
+                    && ui.link(format!("Show the rows behind {}", f.kind.replace('_', " "))).clicked()
+                {
+                    clicked = Some(filter);
+                }
             }
         });
     }
+    clicked
 }
 
 fn section(ui: &mut egui::Ui, title: &str, body: impl FnOnce(&mut egui::Ui)) {
@@ -129,7 +154,8 @@ fn types_section(ui: &mut egui::Ui, field: &FieldEntry) {
     }
 }
 
-fn statistics_grid(ui: &mut egui::Ui, field: &FieldEntry) {
+/// Draws the grid; true when "show these rows" beside the nulls was clicked.
+fn statistics_grid(ui: &mut egui::Ui, field: &FieldEntry) -> bool {
     let mut rows: Vec<(&str, String)> = vec![
         ("Places", group_digits(field.count)),
         ("Null", format!("{} ({})", group_digits(field.nulls), share(field.nulls, field.count))),
@@ -138,13 +164,24 @@ fn statistics_grid(ui: &mut egui::Ui, field: &FieldEntry) {
     if let Some(s) = &field.stats {
         rows.extend(stat_rows(s));
     }
+    let mut show_nulls = false;
+    let empty = field.nulls + field.missing;
     egui::Grid::new("statistics").num_columns(2).striped(true).spacing([24.0, 4.0]).show(ui, |ui| {
         for (name, value) in rows {
             ui.label(name);
-            ui.label(value);
+            if name == "Null" && empty > 0 {
+                ui.horizontal(|ui| {
+                    ui.label(value);
+                    let also = if field.missing > 0 { " (with the missing ones)" } else { "" };
+                    show_nulls = ui.link(format!("show these rows{also}")).clicked();
+                });
+            } else {
+                ui.label(value);
+            }
             ui.end_row();
         }
     });
+    show_nulls
 }
 
 fn json_number(v: &serde_json::Value) -> String {
@@ -209,21 +246,26 @@ fn stat_rows(s: &StatsEntry) -> Vec<(&'static str, String)> {
     rows
 }
 
-fn numeric_histogram(ui: &mut egui::Ui, id: &str, h: &Histogram) {
+/// Draws the histogram; the index of the bar clicked, when `clickable`.
+fn numeric_histogram(ui: &mut egui::Ui, id: &str, h: &Histogram, clickable: bool) -> Option<usize> {
     let bars: Vec<(String, u64)> = h
         .edges
         .windows(2)
         .zip(&h.counts)
         .map(|(w, c)| (format!("{} to {}", decimal(w[0]), decimal(w[1])), *c))
         .collect();
-    bar_chart(ui, id, &bars);
+    let clicked = bar_chart(ui, id, &bars, clickable);
     if !h.exact {
         ui.weak("Counts estimated from the quantile sketch.");
     }
+    clicked
 }
 
 /// Vertical bars, one per (label, count); hovering shows both.
-fn bar_chart(ui: &mut egui::Ui, id: &str, bars: &[(String, u64)]) {
+/// Returns the index of the bar clicked, when `clickable` (each bar is then
+/// a button named "bar N: label, count" for screen readers and tests).
+fn bar_chart(ui: &mut egui::Ui, id: &str, bars: &[(String, u64)], clickable: bool) -> Option<usize> {
+    let mut clicked = None;
     let max = bars.iter().map(|b| b.1).max().unwrap_or(0).max(1) as f32;
     let width = ui.available_width().min(640.0);
     let (rect, _) = ui.allocate_exact_size(egui::vec2(width, 120.0), egui::Sense::hover());
@@ -238,8 +280,18 @@ fn bar_chart(ui: &mut egui::Ui, id: &str, bars: &[(String, u64)]) {
         );
         ui.painter().rect_filled(bar, 1.0, colour);
         let hit = egui::Rect::from_x_y_ranges(bar.x_range(), rect.y_range());
-        let response = ui.interact(hit, ui.scope_id().with((id, i)), egui::Sense::hover());
-        response.on_hover_text(format!("{label}: {}", group_digits(*count)));
+        let sense = if clickable { egui::Sense::click() } else { egui::Sense::hover() };
+        let response = ui.interact(hit, ui.scope_id().with((id, i)), sense);
+        if clickable {
+            let name = format!("bar {}: {label}, {}", i + 1, group_digits(*count));
+            response.widget_info(|| egui::WidgetInfo::labeled(egui::Role::Button, true, &name));
+            if response.clicked() {
+                clicked = Some(i);
+            }
+            response.on_hover_text(format!("{label}: {}. Click to see these rows.", group_digits(*count)));
+        } else {
+            response.on_hover_text(format!("{label}: {}", group_digits(*count)));
+        }
     }
     ui.painter().line_segment([rect.left_bottom(), rect.right_bottom()], ui.visuals().widgets.noninteractive.fg_stroke);
     if let (Some(first), Some(last)) = (bars.first(), bars.last()) {
@@ -249,14 +301,20 @@ fn bar_chart(ui: &mut egui::Ui, id: &str, bars: &[(String, u64)]) {
             ui.weak(format!("to {}", last.0.rsplit(" to ").next().unwrap_or(&last.0)));
         });
     }
+    clicked
 }
 
-fn top_values(ui: &mut egui::Ui, field: &FieldEntry, stats: &StatsEntry, top: &[crate::profile::top::TopValue]) {
+/// Draws the top values; the value clicked (to see its rows), if any.
+fn top_values(ui: &mut egui::Ui, field: &FieldEntry, stats: &StatsEntry, top: &[crate::profile::top::TopValue]) -> Option<String> {
     let present = field.count - field.nulls - field.missing;
+    let mut clicked = None;
     egui::Grid::new("top_values").num_columns(3).spacing([12.0, 3.0]).show(ui, |ui| {
         for t in top {
             let shown = if t.value.is_empty() { "(empty text)".to_string() } else { t.value.clone() };
-            ui.monospace(shown);
+            let value = ui.add(egui::Label::new(egui::RichText::new(shown).monospace()).sense(egui::Sense::click()));
+            if value.on_hover_text("Click to see the rows with this value").clicked() {
+                clicked = Some(t.value.clone());
+            }
             share_bar(ui, t.count as f32 / present.max(1) as f32);
             ui.label(format!("{} ({})", group_digits(t.count), share(t.count, present)));
             ui.end_row();
@@ -266,6 +324,7 @@ fn top_values(ui: &mut egui::Ui, field: &FieldEntry, stats: &StatsEntry, top: &[
         let under = stats.top_max_undercount.unwrap_or(0);
         ui.weak(format!("Counts from a summary; each may be low by up to {}.", group_digits(under)));
     }
+    clicked
 }
 
 fn share_bar(ui: &mut egui::Ui, part: f32) {
@@ -279,6 +338,6 @@ fn share_bar(ui: &mut egui::Ui, part: f32) {
 fn lengths_section(ui: &mut egui::Ui, id: &str, lengths: &crate::report::Lengths) {
     ui.label(format!("min {} · mean {} · max {}", decimal(lengths.min), decimal(lengths.mean), decimal(lengths.max)));
     if let Some(h) = &lengths.histogram {
-        numeric_histogram(ui, id, h);
+        numeric_histogram(ui, id, h, false);
     }
 }

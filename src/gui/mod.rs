@@ -10,6 +10,8 @@ pub mod findings;
 pub mod highlight;
 pub mod palette;
 pub mod record_types;
+pub mod rows;
+pub mod rows_worker;
 pub mod settings;
 pub mod source_bar;
 pub mod state;

@@ -24,6 +24,11 @@ pub enum Intent {
     OpenCompare(PathBuf),
     /// Ask where to save `text` (the save dialog suggests `file_name`).
     SaveText { text: String, file_name: String },
+    /// Narrow Rows further and show them.
+    AddRowFilter(crate::explore::RowFilter),
+    /// Remove the filter at this position.
+    RemoveRowFilter(usize),
+    ClearRowFilters,
     DismissMessage,
 }
 
@@ -32,17 +37,19 @@ pub enum Intent {
 pub enum Area {
     #[default]
     FieldSheet,
+    Rows,
     Findings,
     RecordTypes,
     Compare,
 }
 
 impl Area {
-    pub const ALL: [Area; 4] = [Area::FieldSheet, Area::Findings, Area::RecordTypes, Area::Compare];
+    pub const ALL: [Area; 5] = [Area::FieldSheet, Area::Rows, Area::Findings, Area::RecordTypes, Area::Compare];
 
     pub fn label(self) -> &'static str {
         match self {
             Area::FieldSheet => "Field sheet",
+            Area::Rows => "Rows",
             Area::Findings => "Findings",
             Area::RecordTypes => "Record types",
             Area::Compare => "Compare",
@@ -73,6 +80,10 @@ pub struct State {
     pub comparison: Option<Comparison>,
     /// Set while the second source is being read.
     pub compare_reading: Option<Reading>,
+    /// What Rows is narrowed to, all at once.
+    pub row_filters: Vec<crate::explore::RowFilter>,
+    /// Changes whenever `row_filters` do, so Rows knows to ask again.
+    pub row_filters_version: u64,
     /// Remembered between runs (recent sources, theme, sizes).
     pub settings: super::settings::Settings,
 }
@@ -103,6 +114,13 @@ impl State {
         self.scan = Some(scan);
         self.selected = self.select_when_read.take();
         self.generation += 1;
+        // Filters name the old source's fields and values.
+        self.set_row_filters(Vec::new());
+    }
+
+    pub fn set_row_filters(&mut self, filters: Vec<crate::explore::RowFilter>) {
+        self.row_filters = filters;
+        self.row_filters_version += 1;
     }
 
     /// The report entry of the selected field.

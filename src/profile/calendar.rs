@@ -25,6 +25,12 @@ pub enum Unit {
 pub struct Bucket {
     pub label: String,
     pub count: u64,
+    /// The bucket's instants, `[start, end)` in seconds since the epoch
+    /// (the label says the same for people).
+    #[serde(skip)]
+    pub start: i64,
+    #[serde(skip)]
+    pub end: i64,
 }
 
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -112,7 +118,8 @@ pub fn histogram(seconds: &NumberStats) -> Option<CalendarHistogram> {
     for pair in edges.windows(2) {
         // Share of values before the next edge (an edge belongs to the bucket it starts).
         let at = seconds.share_below(pair[1] as f64);
-        buckets.push(Bucket { label: label(unit, pair[0]), count: ((at - below) * n).round().max(0.0) as u64 });
+        let count = ((at - below) * n).round().max(0.0) as u64;
+        buckets.push(Bucket { label: label(unit, pair[0]), count, start: pair[0], end: pair[1] });
         below = at;
     }
     Some(CalendarHistogram { unit, buckets, exact })
@@ -158,7 +165,11 @@ mod tests {
         assert_eq!(h.unit, Unit::Day);
         assert!(h.exact);
         assert_eq!(h.buckets.iter().map(|b| b.count).sum::<u64>(), 100);
-        assert_eq!(h.buckets[0], Bucket { label: "2026-03-02".into(), count: 24 });
-        assert_eq!(h.buckets.last().unwrap(), &Bucket { label: "2026-03-06".into(), count: 4 });
+        let day = |label: &str, count| {
+            let start = crate::time::rfc3339_seconds(&format!("{label}T00:00:00Z")).unwrap();
+            Bucket { label: label.into(), count, start, end: start + 86_400 }
+        };
+        assert_eq!(h.buckets[0], day("2026-03-02", 24));
+        assert_eq!(h.buckets.last().unwrap(), &day("2026-03-06", 4));
     }
 }

@@ -29,6 +29,28 @@ pub struct Finding {
     pub message: String,
     /// The values (or value groups) behind it.
     pub examples: Vec<String>,
+    /// Which rows show it, for a row view to narrow to (not in the report:
+    /// the examples say the same for people).
+    #[serde(skip)]
+    pub behind: Behind,
+}
+
+/// The rows a finding is about, as far as the profile can say.
+#[derive(Debug, Clone, PartialEq, Default)]
+pub enum Behind {
+    /// Not a set of rows (e.g. "a candidate key" is about all of them).
+    #[default]
+    Nothing,
+    /// These rows (0-based, read order).
+    Rows(Vec<u64>),
+    /// The rows where the field holds one of these values (as top values write them).
+    Values(Vec<String>),
+    /// The rows where the field is null or missing.
+    Empty,
+    /// The rows where the field's number lies outside `[low, high]`.
+    Outside { low: f64, high: f64 },
+    /// The rows where the field's instant lies in `[start, end)` (epoch seconds).
+    During { start: i64, end: i64 },
 }
 
 /// How much a finding matters to someone about to write a pipeline.
@@ -81,6 +103,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             kind: "mostly_empty",
             message: format!("{} of places are null or missing ({} null, {} missing)", percent(empty, field.count), field.nulls(), field.missing),
             examples: Vec::new(),
+            behind: Behind::Empty,
         });
     }
     if field.kinds.unified() == Unified::Mixed {
@@ -88,6 +111,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             kind: "mixed_kinds",
             message: format!("values of more than one kind: {}", crate::shape::observed_label(&field.kinds)),
             examples: field.minority_examples().iter().map(|(k, e)| format!("row {} ({}): {}", e.row, k.name(), e.value)).collect(),
+            behind: Behind::Rows(field.minority_examples().iter().map(|(_, e)| e.row).collect()),
         });
     }
     let strings = field.kinds.get(Kind::String);
@@ -97,13 +121,15 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             kind: "numbers_as_text",
             message: format!("{} of the text values read as numbers", percent(numeric_text, strings)),
             examples: Vec::new(),
+            behind: Behind::Nothing,
         });
     }
     let Some(stats) = field.stats.as_deref() else { return out };
     if let Some(distinct) = stats.distinct_count() {
         if distinct.value == 1 && distinct.exact {
-            let only = stats.top.top(1).into_iter().map(|t| t.value).collect();
-            out.push(Finding { kind: "single_value", message: "every non-null value is the same".into(), examples: only });
+            let only: Vec<String> = stats.top.top(1).into_iter().map(|t| t.value).collect();
+            let behind = Behind::Values(only.clone());
+            out.push(Finding { kind: "single_value", message: "every non-null value is the same".into(), examples: only, behind });
         }
         let unique = if distinct.exact {
             distinct.value == present
@@ -118,6 +144,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
                 kind: "unique_per_row",
                 message: format!("{about}every non-null value is different ({} values): a candidate key", distinct.value),
                 examples: Vec::new(),
+                behind: Behind::Nothing,
             });
         }
     }
@@ -127,11 +154,13 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
     if let Some(text) = &stats.text
         && text.padded > 0
     {
-        let examples = stats.top.entries().filter(|(v, _)| v.trim() != *v && !v.is_empty()).take(EXAMPLES).map(|(v, _)| format!("{v:?}")).collect();
+        let padded: Vec<String> =
+            stats.top.entries().filter(|(v, _)| v.trim() != *v && !v.is_empty()).take(EXAMPLES).map(|(v, _)| v.to_string()).collect();
         out.push(Finding {
             kind: "padded_text",
             message: format!("{} values have leading or trailing whitespace", text.padded),
-            examples,
+            examples: padded.iter().map(|v| format!("{v:?}")).collect(),
+            behind: Behind::Values(padded),
         });
     }
     if let Some(instants) = &stats.instants
@@ -145,6 +174,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
                 crate::time::rfc3339_from_unix(instants.max)
             ),
             examples: vec![crate::time::rfc3339_from_unix(instants.max)],
+            behind: Behind::During { start: crate::profile::field::profile_started() + 1, end: instants.max.saturating_add(1) },
         });
     }
     placeholders(stats, present, &mut out);
@@ -158,6 +188,7 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             kind: "dominant_value",
             message: format!("one value makes up {} of non-null values", percent(top.count, present)),
             examples: vec![top.value.clone()],
+            behind: Behind::Values(vec![top.value.clone()]),
         });
     }
     out
@@ -170,6 +201,7 @@ fn case_variants(stats: &crate::profile::field::FieldStats, out: &mut Vec<Findin
             groups.entry(value.to_lowercase()).or_default().push((value.to_string(), count));
         }
     }
+    let mut shown_values = Vec::new();
     let variants: Vec<String> = groups
         .values_mut()
         .filter(|g| g.len() > 1)
@@ -178,11 +210,15 @@ fn case_variants(stats: &crate::profile::field::FieldStats, out: &mut Vec<Findin
             g.iter().map(|(v, c)| format!("{v} ({c})")).collect::<Vec<_>>().join(" / ")
         })
         .collect();
+    for g in groups.values().filter(|g| g.len() > 1).take(EXAMPLES) {
+        shown_values.extend(g.iter().map(|(v, _)| v.clone()));
+    }
     if !variants.is_empty() {
         out.push(Finding {
             kind: "case_variants",
             message: format!("{} values differ only in letter case", variants.len()),
             examples: variants.into_iter().take(EXAMPLES).collect(),
+            behind: Behind::Values(shown_values),
         });
     }
 }
@@ -206,7 +242,8 @@ fn placeholders(stats: &crate::profile::field::FieldStats, present: u64, out: &m
             "values that usually stand for \"unknown\": {}",
             found.iter().map(|(v, c)| format!("{v:?} in {}", percent(*c, present))).collect::<Vec<_>>().join(", ")
         ),
-        examples: found.into_iter().map(|(v, _)| v).collect(),
+        examples: found.iter().map(|(v, _)| v.clone()).collect(),
+        behind: Behind::Values(found.into_iter().map(|(v, _)| v).collect()),
     });
 }
 
@@ -234,6 +271,7 @@ fn far_outliers(stats: &crate::profile::field::FieldStats, out: &mut Vec<Finding
             if exact { "" } else { ", counted from the sketch (at least one, shown)" }
         ),
         examples,
+        behind: Behind::Outside { low: lo, high: hi },
     });
 }
 
