@@ -73,7 +73,10 @@ impl RowSource {
         let mut frame = scan::scan(info, true)?;
         let schema = frame.collect_schema().map_err(|e| ExploreError::new(&info.path, e.to_string()))?;
         let columns = schema.iter_names().filter(|n| n.as_str() != scan::ROW_COLUMN).map(|n| n.to_string()).collect();
-        let frame_without_statistics = scan::scan(info, false)?;
+        // Only Parquet scans use statistics; the others would be built (and a
+        // JSON document read) a second time for nothing.
+        let frame_without_statistics =
+            if info.format == crate::source::Format::Parquet { scan::scan(info, false)? } else { frame.clone() };
         Ok(RowSource { path: info.path.clone(), frame, frame_without_statistics, schema, columns })
     }
 
