@@ -13,6 +13,9 @@ use crate::explore::{Cell, Page};
 use crate::format::group_digits;
 
 const ROW_HEIGHT: f32 = 20.0;
+/// Pages kept in memory; beyond it the ones farthest from the screen go, so
+/// scrolling through a million rows does not keep every page it passed.
+const KEPT_PAGES: usize = 40;
 
 #[derive(Default)]
 pub struct RowsArea {
@@ -139,6 +142,7 @@ impl RowsArea {
         let Some(Ok(columns)) = &self.columns else { return };
         let columns = columns.clone();
         let mut wanted = Vec::new();
+        let mut on_screen = Vec::new();
         let mut open = None;
         egui::ScrollArea::horizontal().id_salt("rows_wide").show(ui, |ui| {
             TableBuilder::new(ui)
@@ -160,6 +164,7 @@ impl RowsArea {
                     body.rows(ROW_HEIGHT, total as usize, |mut row| {
                         let at = row.index();
                         let page = at / PAGE_ROWS;
+                        on_screen.push(page);
                         match self.pages.get(&page) {
                             Some(Ok(p)) => {
                                 let Some(r) = p.rows.get(at - page * PAGE_ROWS) else { return };
@@ -192,12 +197,33 @@ impl RowsArea {
         if open.is_some() {
             self.opened = open;
         }
+        self.forget_far_pages(&on_screen);
         wanted.dedup();
         for page in wanted {
             if self.asked.insert(page) {
                 self.ask(Request::Page { version: self.version, filters: state.row_filters.clone(), index: page });
             }
         }
+    }
+}
+
+impl RowsArea {
+    fn forget_far_pages(&mut self, on_screen: &[usize]) {
+        let (Some(&first), Some(&last)) = (on_screen.first(), on_screen.last()) else { return };
+        forget_far(&mut self.pages, first, last, KEPT_PAGES);
+    }
+}
+
+/// Keeps the `keep` pages nearest to the pages `first..=last` on screen.
+fn forget_far<T>(pages: &mut HashMap<usize, T>, first: usize, last: usize, keep: usize) {
+    if pages.len() <= keep {
+        return;
+    }
+    let distance = |p: usize| if p < first { first - p } else { p.saturating_sub(last) };
+    let mut by_distance: Vec<usize> = pages.keys().copied().collect();
+    by_distance.sort_by_key(|&p| distance(p));
+    for p in &by_distance[keep..] {
+        pages.remove(p);
     }
 }
 
@@ -255,6 +281,18 @@ fn filter_chips(ui: &mut egui::Ui, state: &State, intents: &mut Vec<Intent>) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn only_the_pages_nearest_the_screen_are_kept() {
+        let mut pages: HashMap<usize, ()> = (0..100).map(|p| (p, ())).collect();
+        forget_far(&mut pages, 50, 52, 7);
+        let mut kept: Vec<usize> = pages.into_keys().collect();
+        kept.sort();
+        assert_eq!(kept, vec![48, 49, 50, 51, 52, 53, 54]);
+        let mut few: HashMap<usize, ()> = (0..5).map(|p| (p, ())).collect();
+        forget_far(&mut few, 90, 91, 7);
+        assert_eq!(few.len(), 5, "fewer pages than the limit stay");
+    }
 
     #[test]
     fn the_count_line_says_how_many_rows_are_kept_of_how_many() {
