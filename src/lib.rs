@@ -7,6 +7,7 @@
 pub mod cli;
 pub mod compare;
 pub mod explore;
+pub mod fit;
 pub mod format;
 pub mod gui;
 pub mod path;

@@ -15,6 +15,26 @@ pub fn rfc3339_from_unix(secs: i64) -> String {
     format!("{y:04}-{m:02}-{d:02}T{:02}:{:02}:{:02}Z", rem / 3600, rem % 3600 / 60, rem % 60)
 }
 
+/// `ticks` counted `per_second` to the second since the epoch as RFC 3339
+/// text with only the fraction digits it needs; `Z` when `zoned`, else the
+/// wall-clock form without an offset.
+pub fn rfc3339_from_ticks(ticks: i64, per_second: i64, zoned: bool) -> String {
+    let secs = ticks.div_euclid(per_second);
+    let part = ticks.rem_euclid(per_second);
+    let mut out = rfc3339_from_unix(secs);
+    out.pop();
+    if part > 0 {
+        let width = per_second.ilog10() as usize;
+        let digits = format!("{part:0width$}");
+        out.push('.');
+        out.push_str(digits.trim_end_matches('0'));
+    }
+    if zoned {
+        out.push('Z');
+    }
+    out
+}
+
 /// Days since 1970-01-01 to a proleptic Gregorian date (Howard Hinnant's
 /// `civil_from_days` algorithm, "chrono-Compatible Low-Level Date Algorithms").
 pub fn civil_from_days(z: i64) -> (i64, u32, u32) {
@@ -76,6 +96,13 @@ pub fn now_unix() -> i64 {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn ticks_become_rfc3339_with_the_fraction_they_need() {
+        assert_eq!(rfc3339_from_ticks(1_500, 1_000_000_000, true), "1970-01-01T00:00:00.0000015Z");
+        assert_eq!(rfc3339_from_ticks(-1, 1_000, false), "1969-12-31T23:59:59.999");
+        assert_eq!(rfc3339_from_ticks(86_400_000_000, 1_000_000, true), "1970-01-02T00:00:00Z");
+    }
 
     #[test]
     fn rfc3339_parses_to_the_epoch_second() {

@@ -449,3 +449,59 @@ fn what_a_target_cannot_express_is_warned_about_by_field() {
     assert!(stderr(&schema).contains("warning: by_number: JSON object keys are text"), "{}", stderr(&schema));
     assert!(stdout(&schema).contains("propertyNames"), "{}", stdout(&schema));
 }
+
+#[test]
+fn fit_exits_0_when_every_row_fits_and_1_with_the_verdicts_when_not() {
+    let dir = tempfile::tempdir().unwrap();
+    let scala = dir.path().join("delivery.scala");
+    let types = plumbline(&["types", &sample("deliveries.parquet"), "--lang", "scala", "-o", &scala.display().to_string()]);
+    assert!(types.status.success(), "{}", stderr(&types));
+
+    let o = plumbline(&["fit", &sample("deliveries.parquet"), &scala.display().to_string()]);
+    assert_eq!(o.status.code(), Some(0), "{}{}", stdout(&o), stderr(&o));
+    assert_eq!(stdout(&o), "Fits: every one of the 3,000 rows read fits the definition.\n");
+
+    let json = dir.path().join("fit.json");
+    let o = plumbline(&["fit", &sample("later/deliveries.parquet"), &scala.display().to_string(), "--json", &json.display().to_string()]);
+    assert_eq!(o.status.code(), Some(1), "{}{}", stdout(&o), stderr(&o));
+    let out = stdout(&o);
+    assert!(out.contains("does not fit: rating: the definition says 8-bit integer; the data holds 32-bit float"), "{out}");
+    assert!(out.contains("does not fit: courier.vehicle: not optional in the definition, but the data has nulls"), "{out}");
+    assert!(out.contains("note: co2_grams: the data has it (32-bit integer); the definition does not"), "{out}");
+    assert!(out.ends_with("Does not fit: 2 differences make rows of the 1,500 read fail.\n"), "{out}");
+    let report = read_json(&json);
+    assert_eq!(report["fits"], false);
+    assert_eq!(report["rows"], 1500);
+    assert_eq!(report["lang"], "Scala");
+    let verdicts = report["verdicts"].as_array().unwrap();
+    assert_eq!(verdicts.len(), 3);
+    let vehicle = verdicts.iter().find(|v| v["path"] == "courier.vehicle").unwrap();
+    assert_eq!(vehicle["problem"], "empty");
+    assert_eq!(vehicle["severity"], "fails");
+    assert_eq!(vehicle["examples"][0]["value"], "null");
+
+    // --no-examples leaves the values out of the text and the JSON.
+    let o = plumbline(&["fit", &sample("later/deliveries.parquet"), &scala.display().to_string(), "--no-examples", "--json", &json.display().to_string(), "--force"]);
+    assert_eq!(o.status.code(), Some(1));
+    assert!(!stdout(&o).contains("e.g."), "{}", stdout(&o));
+    assert!(read_json(&json)["verdicts"][0]["examples"][0].get("value").is_none());
+}
+
+#[test]
+fn fit_errors_name_the_definition_and_the_position() {
+    let dir = tempfile::tempdir().unwrap();
+    let bad = dir.path().join("bad.scala");
+    std::fs::write(&bad, "case class Row(\n  id: Widget)\n").unwrap();
+    let line = assert_one_error_line(&plumbline(&["fit", &sample("deliveries.parquet"), &bad.display().to_string()]));
+    assert!(line.contains("bad.scala: line 2, column 7: `Widget` is neither"), "{line}");
+
+    let unnamed = dir.path().join("row.txt");
+    std::fs::write(&unnamed, "id BIGINT NOT NULL").unwrap();
+    let line = assert_one_error_line(&plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string()]));
+    assert!(line.contains("give --lang"), "{line}");
+    let o = plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]);
+    assert_eq!(o.status.code(), Some(1), "{}", stdout(&o));
+
+    let line = assert_one_error_line(&plumbline(&["fit", &sample("nowhere.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]));
+    assert!(line.contains("nowhere.parquet"), "{line}");
+}

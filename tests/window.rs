@@ -368,3 +368,45 @@ fn a_top_value_and_the_nulls_filter_rows_and_a_nested_cell_opens() {
     h.get_by_label_contains("\n  code: \"QC-");
     h.get_by_label("Close");
 }
+
+#[test]
+fn the_generated_types_are_checked_against_every_row_and_a_definition_shows_its_verdicts() {
+    let mut h = window_sized(sample("deliveries.parquet"), 900.0);
+    wait_for_read(&mut h);
+    click(&mut h, "Record types");
+    click(&mut h, "Check against every row");
+    wait_for_read(&mut h);
+    h.get_by_label("Every one of the 3,000 rows fits the generated Scala types.");
+    assert_eq!(app(&h).fit.fit().map(|f| f.verdicts.len()), Some(0));
+
+    // A hand-written definition whose `note` is not optional.
+    let dir = tempfile::tempdir().unwrap();
+    let code = plumbline::types::generate(
+        app(&h).state.scan.as_deref().unwrap(),
+        plumbline::types::Lang::Scala,
+        &plumbline::types::TypeOptions {
+            root: "Delivery".into(),
+            optional: Default::default(),
+            mixed: Default::default(),
+            time: Default::default(),
+        },
+    )
+    .code
+    .replace("note: Option[String]", "note: String");
+    let file = dir.path().join("delivery.scala");
+    std::fs::write(&file, code).unwrap();
+    h.state_mut().as_mut().unwrap().apply(Intent::CheckDefinition(plumbline::gui::fit::Checked::File(file)));
+    wait_for_read(&mut h);
+    h.get_by_label("1 difference makes rows of the 3,000 fail to fit delivery.scala.");
+    h.get_by_label_contains("not optional in the definition, but the data has nulls");
+    let said = app(&h).fit.fit().unwrap().verdicts[0].rows;
+    // Its rows in Rows: exactly as many as the verdict counts.
+    click(&mut h, "show these rows");
+    wait_for_read(&mut h);
+    assert_eq!(app(&h).rows.kept_rows(), Some(said));
+    // The field link shows its sheet.
+    click(&mut h, "Fit");
+    h.get_by_label("note").click();
+    h.step();
+    assert_eq!(app(&h).state.selected.as_deref(), Some("note"));
+}

@@ -38,6 +38,41 @@ pub enum Command {
     Profile(ProfileArgs),
     /// Write record types that fit every row read.
     Types(TypesArgs),
+    /// Check an existing definition against every row: exit 0 when every
+    /// row fits, 1 when some do not, 2 on an error.
+    Fit(FitArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct FitArgs {
+    /// The data: a file or directory of part files, as for `profile`.
+    pub path: PathBuf,
+    /// The definition: Scala case classes, Rust structs, a Spark DDL
+    /// schema string or a JSON Schema.
+    pub definition: PathBuf,
+    /// The definition's language (by default from its file name ending:
+    /// .scala, .rs, .ddl or .sql, .json).
+    #[arg(long, value_enum)]
+    pub lang: Option<crate::fit::DefinitionLang>,
+    /// The record that stands for one row, when the file has several that
+    /// no other uses.
+    #[arg(long, value_name = "NAME")]
+    pub root: Option<String>,
+    /// Fields the data has and the definition lacks make rows fail to fit.
+    #[arg(long)]
+    pub deny_extra: bool,
+    /// Write the verdicts as JSON to this file (written atomically).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Replace the --json file if it exists.
+    #[arg(long)]
+    pub force: bool,
+    /// Leave data values out of the examples.
+    #[arg(long)]
+    pub no_examples: bool,
+    /// Read the data as this format instead of detecting it.
+    #[arg(long, value_enum)]
+    pub format: Option<FormatChoice>,
 }
 
 #[derive(Debug, clap::Args)]
@@ -112,6 +147,7 @@ pub fn main() -> ExitCode {
     match cli.command {
         Some(Command::Profile(args)) => run_profile(&args),
         Some(Command::Types(args)) => run_types(&args),
+        Some(Command::Fit(args)) => run_fit(&args),
         None => match crate::gui::run(crate::gui::Start { path: cli.path, field: cli.field, area: cli.area, compare: cli.compare }) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
@@ -193,4 +229,64 @@ fn run_types(args: &TypesArgs) -> ExitCode {
             ExitCode::SUCCESS
         }
     }
+}
+
+fn run_fit(args: &FitArgs) -> ExitCode {
+    use crate::fit::{self, DefinitionLang, FitOptions};
+    let Some(lang) = args.lang.or_else(|| DefinitionLang::from_path(&args.definition)) else {
+        return fail(&format!("{}: cannot tell the definition's language from its name; give --lang", args.definition.display()));
+    };
+    let text = match std::fs::read_to_string(&args.definition) {
+        Ok(t) => t,
+        Err(e) => return fail(&format!("{}: {e}", args.definition.display())),
+    };
+    let definition = match fit::definition::read(&text, lang, args.root.as_deref()) {
+        Ok(d) => d,
+        Err(e) => return fail(&format!("{}: {e}", args.definition.display())),
+    };
+    let open = OpenOptions { format: args.format };
+    let stop = AtomicBool::new(false);
+    let options = ScanOptions { skip_statistics: true, ..Default::default() };
+    let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
+        Ok(s) => s,
+        Err(e) => return fail(&e),
+    };
+    let outcome = match fit::fit(&scan, open, &definition, FitOptions { deny_extra: args.deny_extra }, &stop) {
+        Ok(f) => f,
+        Err(e) => return fail(&e),
+    };
+    print!("{}", fit::render(&outcome, args.no_examples));
+    if let Some(json) = &args.json {
+        let report = fit_json(args, lang, &outcome);
+        if let Err(e) = report::write::write_atomically(json, report.as_bytes(), args.force) {
+            return fail(&e);
+        }
+    }
+    if outcome.fits() { ExitCode::SUCCESS } else { ExitCode::from(1) }
+}
+
+/// The fit as JSON: what was checked against what, and every verdict.
+fn fit_json(args: &FitArgs, lang: crate::fit::DefinitionLang, outcome: &crate::fit::Fit) -> String {
+    let mut verdicts = serde_json::to_value(&outcome.verdicts).unwrap_or_default();
+    if args.no_examples
+        && let Some(list) = verdicts.as_array_mut()
+    {
+        for v in list {
+            if let Some(examples) = v.get_mut("examples").and_then(|e| e.as_array_mut()) {
+                for e in examples {
+                    e.as_object_mut().map(|o| o.remove("value"));
+                }
+            }
+        }
+    }
+    let out = serde_json::json!({
+        "source": args.path.display().to_string(),
+        "definition": args.definition.display().to_string(),
+        "lang": lang.label(),
+        "rows": outcome.rows,
+        "fits": outcome.fits(),
+        "partial": outcome.partial,
+        "verdicts": verdicts,
+    });
+    serde_json::to_string_pretty(&out).unwrap_or_default() + "\n"
 }

@@ -9,6 +9,7 @@ use super::compare::CompareArea;
 use super::field_sheet::FieldSheet;
 use super::field_tree::FieldTree;
 use super::findings::FindingsArea;
+use super::fit::FitArea;
 use super::record_types::RecordTypes;
 use super::rows::RowsArea;
 use super::source_bar::SourceBar;
@@ -23,13 +24,14 @@ pub struct PlumblineApp {
     findings: FindingsArea,
     pub record_types: RecordTypes,
     pub rows: RowsArea,
+    pub fit: FitArea,
     compare: CompareArea,
     job: Option<ScanJob>,
     /// Reads the second source of Compare.
     compare_job: Option<ScanJob>,
     /// Answers from the open dialog, which runs on its own thread: the
-    /// path, and whether it is for Compare.
-    chosen: Option<Receiver<(Option<PathBuf>, bool)>>,
+    /// path, and what it is for.
+    chosen: Option<Receiver<(Option<PathBuf>, Chosen)>>,
     /// The outcome of a save, which runs on its own thread.
     saved: Option<Receiver<Result<String, String>>>,
     /// Where `state.settings` is kept; None keeps nothing (tests).
@@ -48,6 +50,7 @@ impl PlumblineApp {
             findings: FindingsArea::default(),
             record_types: RecordTypes::default(),
             rows: RowsArea::default(),
+            fit: FitArea::default(),
             compare: CompareArea::default(),
             job: None,
             compare_job: None,
@@ -81,9 +84,10 @@ impl PlumblineApp {
         app
     }
 
-    /// True while a source is being read or Rows waits for rows (tests wait on this).
+    /// True while a source is being read, Rows waits for rows or a fit
+    /// runs (tests wait on this).
     pub fn is_busy(&self) -> bool {
-        self.job.is_some() || self.compare_job.is_some() || self.rows.is_waiting()
+        self.job.is_some() || self.compare_job.is_some() || self.rows.is_waiting() || self.fit.is_running()
     }
 
     /// Writes the settings file, if there is one. A failure is only
@@ -111,13 +115,17 @@ impl PlumblineApp {
     }
 
     /// Shows the native open dialog on its own thread.
-    fn choose_file(&mut self, for_compare: bool) {
+    fn choose_file(&mut self, purpose: Chosen) {
         let (tx, rx) = channel();
         let ctx = self.ctx.clone();
         std::thread::spawn(move || {
-            let title = if for_compare { "Open a source to compare with" } else { "Open a data source" };
+            let title = match purpose {
+                Chosen::Source => "Open a data source",
+                Chosen::Compare => "Open a source to compare with",
+                Chosen::Definition => "Open a definition to check against the rows",
+            };
             let picked = rfd::FileDialog::new().set_title(title).pick_file();
-            let _ = tx.send((picked, for_compare));
+            let _ = tx.send((picked, purpose));
             ctx.request_repaint();
         });
         self.chosen = Some(rx);
@@ -125,8 +133,16 @@ impl PlumblineApp {
 
     pub fn apply(&mut self, intent: Intent) {
         match intent {
-            Intent::ChooseFile => self.choose_file(false),
-            Intent::ChooseCompareFile => self.choose_file(true),
+            Intent::ChooseFile => self.choose_file(Chosen::Source),
+            Intent::ChooseCompareFile => self.choose_file(Chosen::Compare),
+            Intent::ChooseDefinition => self.choose_file(Chosen::Definition),
+            Intent::CheckDefinition(checked) => {
+                if let Some(scan) = &self.state.scan {
+                    let ctx = self.ctx.clone();
+                    self.fit.start(checked, scan, self.state.generation, move || ctx.request_repaint());
+                    self.state.area = Area::Fit;
+                }
+            }
             Intent::OpenCompare(path) => {
                 if let Some(job) = self.compare_job.take() {
                     job.stop();
@@ -203,8 +219,9 @@ impl PlumblineApp {
         {
             self.chosen = None;
             match answer {
-                (Some(path), false) => self.apply(Intent::Open(path)),
-                (Some(path), true) => self.apply(Intent::OpenCompare(path)),
+                (Some(path), Chosen::Source) => self.apply(Intent::Open(path)),
+                (Some(path), Chosen::Compare) => self.apply(Intent::OpenCompare(path)),
+                (Some(path), Chosen::Definition) => self.apply(Intent::CheckDefinition(super::fit::Checked::File(path))),
                 (None, _) => {}
             }
         }
@@ -274,6 +291,10 @@ impl PlumblineApp {
                 Area::Rows => self.rows.show(ui, &self.state),
                 Area::Findings => self.findings.show(ui, &self.state),
                 Area::RecordTypes => self.record_types.show(ui, &self.state),
+                Area::Fit => {
+                    let generated = self.record_types.readable_code(&self.state);
+                    self.fit.show(ui, &self.state, generated)
+                }
                 Area::Compare => self.compare.show(ui, &self.state),
             });
         });
@@ -281,6 +302,14 @@ impl PlumblineApp {
             self.apply(intent);
         }
     }
+}
+
+/// What the open dialog was shown for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Chosen {
+    Source,
+    Compare,
+    Definition,
 }
 
 /// Takes a job's messages: progress into `reading`; the result once it

@@ -7,6 +7,7 @@ pub mod compare;
 pub mod field_sheet;
 pub mod field_tree;
 pub mod findings;
+pub mod fit;
 pub mod highlight;
 pub mod palette;
 pub mod record_types;

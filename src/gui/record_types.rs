@@ -6,7 +6,9 @@ use std::sync::Arc;
 use eframe::egui;
 use eframe::egui::text::LayoutJob;
 
+use super::fit::Checked;
 use super::highlight;
+use crate::fit::DefinitionLang;
 use super::state::{Intent, State};
 use crate::format::group_digits;
 use crate::types::{self, Generated, Lang, MixedChoice, Optionality, TimeChoice, TypeOptions};
@@ -55,6 +57,13 @@ impl RecordTypes {
         self.cache.as_ref().map(|(_, g)| g)
     }
 
+    /// The code shown and the language to read it back in, for the targets
+    /// Fit can read.
+    pub fn readable_code(&mut self, state: &State) -> Option<(String, DefinitionLang)> {
+        let lang = readable(self.lang)?;
+        self.generated(state).map(|g| (g.code.clone(), lang))
+    }
+
     pub fn show(&mut self, ui: &mut egui::Ui, state: &State) -> Vec<Intent> {
         let mut intents = Vec::new();
         let Some(scan) = state.scan.as_deref() else {
@@ -75,6 +84,11 @@ impl RecordTypes {
             if ui.button("Save…").on_hover_text("Save the code to a file").clicked() {
                 let stem = types::default_root(scan);
                 intents.push(Intent::SaveText { text: generated.code.clone(), file_name: format!("{stem}.{}", lang.extension()) });
+            }
+            if let Some(reader) = readable(lang)
+                && ui.button("Check against every row").on_hover_text("Read this code back and fit it to every row (shows Fit)").clicked()
+            {
+                intents.push(Intent::CheckDefinition(Checked::Generated { code: generated.code.clone(), lang: reader }));
             }
             ui.separator();
             ui.label(fit_line(scan, generated, lang));
@@ -134,6 +148,17 @@ impl RecordTypes {
                 ui.selectable_value(&mut self.time, TimeChoice::JavaTime, "java.time");
             }
         });
+    }
+}
+
+/// The definition language a target's code is read back in, if any.
+fn readable(lang: Lang) -> Option<DefinitionLang> {
+    match lang {
+        Lang::Scala => Some(DefinitionLang::Scala),
+        Lang::SparkDdl => Some(DefinitionLang::SparkDdl),
+        Lang::Rust => Some(DefinitionLang::Rust),
+        Lang::JsonSchema => Some(DefinitionLang::JsonSchema),
+        _ => None,
     }
 }
 

@@ -29,6 +29,10 @@ pub enum Intent {
     /// Remove the filter at this position.
     RemoveRowFilter(usize),
     ClearRowFilters,
+    /// Show the open dialog for a definition to check against the rows.
+    ChooseDefinition,
+    /// Check a definition against every row, and show Fit.
+    CheckDefinition(super::fit::Checked),
     DismissMessage,
 }
 
@@ -40,11 +44,12 @@ pub enum Area {
     Rows,
     Findings,
     RecordTypes,
+    Fit,
     Compare,
 }
 
 impl Area {
-    pub const ALL: [Area; 5] = [Area::FieldSheet, Area::Rows, Area::Findings, Area::RecordTypes, Area::Compare];
+    pub const ALL: [Area; 6] = [Area::FieldSheet, Area::Rows, Area::Findings, Area::RecordTypes, Area::Fit, Area::Compare];
 
     pub fn label(self) -> &'static str {
         match self {
@@ -52,6 +57,7 @@ impl Area {
             Area::Rows => "Rows",
             Area::Findings => "Findings",
             Area::RecordTypes => "Record types",
+            Area::Fit => "Fit",
             Area::Compare => "Compare",
         }
     }
