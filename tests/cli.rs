@@ -505,3 +505,41 @@ fn fit_errors_name_the_definition_and_the_position() {
     let line = assert_one_error_line(&plumbline(&["fit", &sample("nowhere.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]));
     assert!(line.contains("nowhere.parquet"), "{line}");
 }
+
+#[test]
+fn compare_prints_the_schema_changes_and_drift_and_gates_on_them() {
+    let (old, new) = (sample("deliveries.parquet"), sample("later/deliveries.parquet"));
+    let o = plumbline(&["compare", &old, &new]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let out = stdout(&o);
+    assert!(out.starts_with("Schema: + 1 added · ~ 1 type changed · ~ 1 nulls or missing keys changed\n"), "{out}");
+    assert!(out.contains("  + co2_grams  int32\n"), "{out}");
+    assert!(out.contains("  ~ rating  int8 → float32\n"), "{out}");
+    assert!(out.contains("  ~ courier.vehicle  null or missing in 0 of 3,000 → 154 of 1,500\n"), "{out}");
+    // The drift the generator put in, and nothing else drifted.
+    let drifted: Vec<&str> = out.lines().filter(|l| l.starts_with("  drifted ")).collect();
+    assert_eq!(drifted.len(), 2, "{out}");
+    assert!(drifted[0].starts_with("  drifted courier.vehicle: null rate 0.0 % → 10.3 %"), "{out}");
+    assert!(drifted[1].starts_with("  drifted rating: null rate"), "{out}");
+
+    assert_eq!(plumbline(&["compare", &old, &new, "--fail-on", "schema"]).status.code(), Some(1));
+    assert_eq!(plumbline(&["compare", &old, &new, "--fail-on", "drift"]).status.code(), Some(1));
+    let same = plumbline(&["compare", &old, &old, "--fail-on", "schema", "--fail-on", "drift"]);
+    assert_eq!(same.status.code(), Some(0), "{}", stdout(&same));
+    assert!(stdout(&same).starts_with("Schema: No field changed.\nDrift: 0 of "), "{}", stdout(&same));
+
+    let dir = tempfile::tempdir().unwrap();
+    let json = dir.path().join("compare.json");
+    let o = plumbline(&["compare", &old, &new, "--json", &json.display().to_string()]);
+    assert_eq!(o.status.code(), Some(0));
+    let report = read_json(&json);
+    assert_eq!(report["schema_changed"], true);
+    assert_eq!(report["drifted"], true);
+    assert_eq!(report["changes"].as_array().unwrap().len(), 3);
+    let rating = report["drift"].as_array().unwrap().iter().find(|d| d["path"] == "rating").unwrap();
+    assert!(rating["numbers"]["ks"].as_f64().unwrap() > 0.1);
+    assert!(rating["numbers"]["psi"].as_f64().unwrap() >= 0.25);
+
+    let line = assert_one_error_line(&plumbline(&["compare", &old, &sample("nowhere.parquet")]));
+    assert!(line.contains("nowhere.parquet"), "{line}");
+}

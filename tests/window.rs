@@ -274,6 +274,9 @@ fn compare_shows_the_later_drop_beside_the_open_source() {
     assert_eq!(h.get_all_by_label("+ added").count(), 1);
     // The Field tree marks the open source's changed fields, symbol and word.
     assert_eq!(h.get_all_by_label("~ type changed").count(), 2, "in the tree and in Compare");
+    // Drift beside each changed field: the vehicles' null rate moved.
+    h.get_by_label("2 of 26 fields in both sources drifted (a PSI of 0.25 or more, or the null rate moved 5 points).");
+    h.get_by_label_contains("▲ drifted: null rate 0.0 % → 10.3 %");
 }
 
 #[test]

@@ -41,6 +41,45 @@ pub enum Command {
     /// Check an existing definition against every row: exit 0 when every
     /// row fits, 1 when some do not, 2 on an error.
     Fit(FitArgs),
+    /// Compare two sources: schema changes and drifted fields. Exit 0, or
+    /// 1 when a --fail-on condition holds, 2 on an error.
+    Compare(CompareArgs),
+}
+
+/// What makes `compare` exit 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum FailOn {
+    /// Any field added, removed, moved, retyped, or newly (no longer) empty.
+    Schema,
+    /// Any field drifted (a major PSI shift, or the null rate moved).
+    Drift,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct CompareArgs {
+    /// The earlier source (a file or a directory of part files).
+    pub old: PathBuf,
+    /// The later source.
+    pub new: PathBuf,
+    /// Exit 1 when this holds (may be given twice).
+    #[arg(long, value_enum)]
+    pub fail_on: Vec<FailOn>,
+    #[command(flatten)]
+    pub out: JsonOut,
+}
+
+/// Where the JSON form of a result goes, and whether values stay in it.
+#[derive(Debug, clap::Args)]
+pub struct JsonOut {
+    /// Write the result as JSON to this file (written atomically).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Replace the --json file if it exists.
+    #[arg(long)]
+    pub force: bool,
+    /// Leave data values (examples, new and vanished values) out.
+    #[arg(long)]
+    pub no_examples: bool,
 }
 
 #[derive(Debug, clap::Args)]
@@ -61,15 +100,8 @@ pub struct FitArgs {
     /// Fields the data has and the definition lacks make rows fail to fit.
     #[arg(long)]
     pub deny_extra: bool,
-    /// Write the verdicts as JSON to this file (written atomically).
-    #[arg(long, value_name = "FILE")]
-    pub json: Option<PathBuf>,
-    /// Replace the --json file if it exists.
-    #[arg(long)]
-    pub force: bool,
-    /// Leave data values out of the examples.
-    #[arg(long)]
-    pub no_examples: bool,
+    #[command(flatten)]
+    pub out: JsonOut,
     /// Read the data as this format instead of detecting it.
     #[arg(long, value_enum)]
     pub format: Option<FormatChoice>,
@@ -148,6 +180,7 @@ pub fn main() -> ExitCode {
         Some(Command::Profile(args)) => run_profile(&args),
         Some(Command::Types(args)) => run_types(&args),
         Some(Command::Fit(args)) => run_fit(&args),
+        Some(Command::Compare(args)) => run_compare(&args),
         None => match crate::gui::run(crate::gui::Start { path: cli.path, field: cli.field, area: cli.area, compare: cli.compare }) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
@@ -255,10 +288,10 @@ fn run_fit(args: &FitArgs) -> ExitCode {
         Ok(f) => f,
         Err(e) => return fail(&e),
     };
-    print!("{}", fit::render(&outcome, args.no_examples));
-    if let Some(json) = &args.json {
+    print!("{}", fit::render(&outcome, args.out.no_examples));
+    if let Some(json) = &args.out.json {
         let report = fit_json(args, lang, &outcome);
-        if let Err(e) = report::write::write_atomically(json, report.as_bytes(), args.force) {
+        if let Err(e) = report::write::write_atomically(json, report.as_bytes(), args.out.force) {
             return fail(&e);
         }
     }
@@ -268,7 +301,7 @@ fn run_fit(args: &FitArgs) -> ExitCode {
 /// The fit as JSON: what was checked against what, and every verdict.
 fn fit_json(args: &FitArgs, lang: crate::fit::DefinitionLang, outcome: &crate::fit::Fit) -> String {
     let mut verdicts = serde_json::to_value(&outcome.verdicts).unwrap_or_default();
-    if args.no_examples
+    if args.out.no_examples
         && let Some(list) = verdicts.as_array_mut()
     {
         for v in list {
@@ -289,4 +322,68 @@ fn fit_json(args: &FitArgs, lang: crate::fit::DefinitionLang, outcome: &crate::f
         "verdicts": verdicts,
     });
     serde_json::to_string_pretty(&out).unwrap_or_default() + "\n"
+}
+
+fn run_compare(args: &CompareArgs) -> ExitCode {
+    let stop = AtomicBool::new(false);
+    let mut scans = Vec::new();
+    for path in [&args.old, &args.new] {
+        match scan::scan_path(path, OpenOptions::default(), ScanOptions::default(), &stop, &mut |_| {}) {
+            Ok(s) => {
+                if let scan::Coverage::Broken { error, .. } = &s.coverage {
+                    return fail(error);
+                }
+                scans.push(s);
+            }
+            Err(e) => return fail(&e),
+        }
+    }
+    let compared = crate::compare::compare(&scans[0].shape, &scans[1].shape);
+    print!("{}", crate::compare::text::render(&compared, args.out.no_examples));
+    if let Some(json) = &args.out.json {
+        let mut drifts = serde_json::to_value(&compared.drifts).unwrap_or_default();
+        if args.out.no_examples
+            && let Some(list) = drifts.as_array_mut()
+        {
+            for d in list.iter_mut().filter_map(|d| d.get_mut("categories")).filter_map(|c| c.as_object_mut()) {
+                d.remove("new_values");
+                d.remove("vanished_values");
+            }
+        }
+        let changes: Vec<serde_json::Value> = compared
+            .changes
+            .iter()
+            .filter(|c| c.change != crate::compare::Change::Same)
+            .map(|c| {
+                let other = match &c.change {
+                    crate::compare::Change::MovedTo(p) | crate::compare::Change::MovedFrom(p) => Some(p.clone()),
+                    _ => None,
+                };
+                serde_json::json!({
+                    "path": c.path,
+                    "change": c.change.label(),
+                    "other_path": other,
+                    "before": c.before.as_ref().map(|b| b.type_label.clone()),
+                    "after": c.after.as_ref().map(|a| a.type_label.clone()),
+                })
+            })
+            .collect();
+        let out = serde_json::json!({
+            "old": args.old.display().to_string(),
+            "new": args.new.display().to_string(),
+            "schema_changed": compared.schema_changed(),
+            "drifted": compared.drifted(),
+            "changes": changes,
+            "drift": drifts,
+        });
+        let text = serde_json::to_string_pretty(&out).unwrap_or_default() + "\n";
+        if let Err(e) = report::write::write_atomically(json, text.as_bytes(), args.out.force) {
+            return fail(&e);
+        }
+    }
+    let failed = args.fail_on.iter().any(|f| match f {
+        FailOn::Schema => compared.schema_changed(),
+        FailOn::Drift => compared.drifted(),
+    });
+    if failed { ExitCode::from(1) } else { ExitCode::SUCCESS }
 }

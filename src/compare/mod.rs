@@ -1,7 +1,12 @@
-//! Comparing two sources' shapes field by field: which fields were added,
-//! removed, changed type, or started (or stopped) holding nulls or missing
-//! keys. The window's Compare area shows this; drift statistics per field
-//! are meant to join each [`FieldChange`] later.
+//! Comparing two sources: their shapes field by field (added, removed,
+//! moved in nesting, changed type, started or stopped holding nulls or
+//! missing keys) and, for fields in both, how the values drifted
+//! ([`drift`]). The window's Compare area and `plumbline compare` show it.
+
+pub mod drift;
+pub mod ks;
+pub mod psi;
+pub mod text;
 
 use std::collections::HashMap;
 
@@ -20,6 +25,11 @@ pub enum Change {
     /// In both with the same type, but only one has nulls or missing keys
     /// (a record type's optionality would differ).
     EmptinessChanged,
+    /// Only in the first source here; the second has it, same name and
+    /// type, at this other path.
+    MovedTo(String),
+    /// Only in the second source here; the first had it at this path.
+    MovedFrom(String),
 }
 
 impl Change {
@@ -30,6 +40,7 @@ impl Change {
             Change::Added => "+",
             Change::Removed => "−",
             Change::TypeChanged | Change::EmptinessChanged => "~",
+            Change::MovedTo(_) | Change::MovedFrom(_) => "»",
         }
     }
 
@@ -40,6 +51,7 @@ impl Change {
             Change::Removed => "removed",
             Change::TypeChanged => "type changed",
             Change::EmptinessChanged => "nulls or missing keys changed",
+            Change::MovedTo(_) | Change::MovedFrom(_) => "moved in nesting",
         }
     }
 }
@@ -102,7 +114,38 @@ pub fn compare_shapes(before: &Shape, after: &Shape) -> Vec<FieldChange> {
             out.push(FieldChange { path: f.path.clone(), depth, change: Change::Added, before: None, after: Some(FieldSide::of(f)) });
         }
     });
+    pair_moves(&mut out);
     out
+}
+
+/// A removed field and an added one with the same name and type, each the
+/// only such, were moved: mark both with the other's path.
+fn pair_moves(changes: &mut [FieldChange]) {
+    type Key = (String, String);
+    let mut removed: HashMap<Key, Vec<usize>> = HashMap::new();
+    let mut added: HashMap<Key, Vec<usize>> = HashMap::new();
+    for (i, c) in changes.iter().enumerate() {
+        let (side, into) = match c.change {
+            Change::Removed => (&c.before, &mut removed),
+            Change::Added => (&c.after, &mut added),
+            _ => continue,
+        };
+        if let Some(s) = side {
+            into.entry((last_name(&c.path).to_string(), s.type_label.clone())).or_default().push(i);
+        }
+    }
+    for (key, gone) in &removed {
+        if let (Some([to]), [from]) = (added.get(key).map(Vec::as_slice), gone.as_slice()) {
+            let (to_path, from_path) = (changes[*to].path.clone(), changes[*from].path.clone());
+            changes[*from].change = Change::MovedTo(to_path);
+            changes[*to].change = Change::MovedFrom(from_path);
+        }
+    }
+}
+
+/// The last member name of a path (`pickup.lat` → `lat`; `stops[]` → `stops[]`).
+fn last_name(path: &str) -> &str {
+    path.rsplit('.').next().unwrap_or(path)
 }
 
 fn by_path<'a>(fields: &'a [FieldShape], out: &mut HashMap<&'a str, &'a FieldShape>) {
@@ -112,14 +155,76 @@ fn by_path<'a>(fields: &'a [FieldShape], out: &mut HashMap<&'a str, &'a FieldSha
     }
 }
 
+/// Two sources compared: every field's change, and the drift of each field
+/// both have (in the first source's order).
+#[derive(Debug, Clone)]
+pub struct Compared {
+    pub changes: Vec<FieldChange>,
+    pub drifts: Vec<drift::Drift>,
+}
+
+impl Compared {
+    pub fn schema_changed(&self) -> bool {
+        self.changes.iter().any(|c| c.change != Change::Same)
+    }
+
+    pub fn drifted(&self) -> bool {
+        self.drifts.iter().any(|d| d.drifted())
+    }
+}
+
+/// Compares the shapes and, from the profiles, the values of fields in both.
+pub fn compare(before: &Shape, after: &Shape) -> Compared {
+    let changes = compare_shapes(before, after);
+    let mut later: HashMap<&str, &FieldShape> = HashMap::new();
+    by_path(&after.fields, &mut later);
+    let mut drifts = Vec::new();
+    before.walk(|f, _| {
+        if let Some(other) = later.get(f.path.as_str())
+            && f.stats.is_some()
+            && f.children.is_empty()
+        {
+            drifts.push(drift::drift(f, other));
+        }
+    });
+    Compared { changes, drifts }
+}
+
 /// How many fields changed in each way (not counting `Same`).
 pub fn summary(changes: &[FieldChange]) -> String {
     let count = |c: Change| changes.iter().filter(|f| f.change == c).count();
-    let parts: Vec<String> = [Change::Added, Change::Removed, Change::TypeChanged, Change::EmptinessChanged]
+    let moved = changes.iter().filter(|f| matches!(f.change, Change::MovedFrom(_))).count();
+    let parts: Vec<String> = [Change::Added, Change::Removed, Change::TypeChanged, Change::EmptinessChanged, Change::MovedFrom(String::new())]
         .into_iter()
-        .map(|c| (count(c.clone()), c))
+        .map(|c| (if matches!(c, Change::MovedFrom(_)) { moved } else { count(c.clone()) }, c))
         .filter(|(n, _)| *n > 0)
         .map(|(n, c)| format!("{} {n} {}", c.symbol(), c.label()))
         .collect();
     if parts.is_empty() { "No field changed.".into() } else { parts.join(" · ") }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::source::Batch;
+    use crate::value::Value;
+
+    fn shape(json_rows: &[&str]) -> Shape {
+        let rows: Vec<Value> = json_rows.iter().map(|r| crate::source::json::parse::parse_value(r.as_bytes()).unwrap()).collect();
+        let mut b = crate::shape::ShapeBuilder::empty(true);
+        b.add(&Batch::Rows(rows)).unwrap();
+        b.finish()
+    }
+
+    #[test]
+    fn a_field_that_changed_parent_is_moved_not_removed_and_added() {
+        let before = shape(&[r#"{"pickup": {"lat": 1.5, "zone": "a"}, "id": 1}"#]);
+        let after = shape(&[r#"{"pickup": {"zone": "a"}, "lat": 1.5, "id": 2}"#]);
+        let changes = compare_shapes(&before, &after);
+        let of = |p: &str| changes.iter().find(|c| c.path == p).map(|c| c.change.clone()).unwrap();
+        assert_eq!(of("pickup.lat"), Change::MovedTo("lat".into()));
+        assert_eq!(of("lat"), Change::MovedFrom("pickup.lat".into()));
+        assert_eq!(of("id"), Change::Same);
+        assert_eq!(summary(&changes), "» 1 moved in nesting");
+    }
 }

@@ -1,7 +1,7 @@
 //! Compare: a second source beside the open one, field by field — the
 //! first source's fields on the left, the second's on the right, and
-//! between them a symbol (+ added, − removed, ~ changed, = same) in the
-//! change's colour. Drift statistics per field are to join each row.
+//! between them a symbol (+ added, − removed, ~ changed, » moved, = same)
+//! in the change's colour, and after them how the field's values drifted.
 
 use eframe::egui;
 
@@ -43,21 +43,43 @@ impl CompareArea {
             }
         });
         ui.label(crate::compare::summary(&comparison.changes));
+        let (both, drifted) = comparison.drift_summary;
+        ui.label(format!(
+            "{drifted} of {both} fields in both sources drifted (a PSI of {} or more, or the null rate moved {} points).",
+            crate::compare::psi::MAJOR_SHIFT,
+            crate::compare::drift::NULL_RATE_SHIFT * 100.0
+        ));
         ui.checkbox(&mut self.only_changes, "only changed fields");
         ui.separator();
         let rows: Vec<&FieldChange> = comparison.changes.iter().filter(|c| !self.only_changes || c.change != Change::Same).collect();
         egui::ScrollArea::both().auto_shrink([false, false]).id_salt("compare").show_rows(ui, 20.0, rows.len(), |ui, range| {
-            egui::Grid::new("compare_rows").num_columns(3).spacing([12.0, 4.0]).min_col_width(260.0).show(ui, |ui| {
+            egui::Grid::new("compare_rows").num_columns(4).spacing([12.0, 4.0]).min_col_width(200.0).show(ui, |ui| {
                 for c in &rows[range] {
                     side(ui, c, c.before.as_ref(), &mut intents);
                     let (colour, text) = mark(ui.visuals(), &c.change);
                     ui.colored_label(colour, text).on_hover_text(c.change.label());
                     side(ui, c, c.after.as_ref(), &mut intents);
+                    drift(ui, comparison.drift.get(&c.path));
                     ui.end_row();
                 }
             });
         });
         intents
+    }
+}
+
+/// How the field's values moved, when worth a word; "▲ drifted" (a symbol
+/// and a word, in the warning colour) when they drifted.
+fn drift(ui: &mut egui::Ui, drift: Option<&crate::compare::drift::Drift>) {
+    let Some(d) = drift.filter(|d| crate::compare::text::worth_showing(d)) else {
+        ui.label("");
+        return;
+    };
+    let text = crate::compare::text::describe(d, false);
+    if d.drifted() {
+        ui.colored_label(ui.visuals().warn_fg_color, format!("▲ drifted: {text}"));
+    } else {
+        ui.weak(text);
     }
 }
 

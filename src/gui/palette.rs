@@ -39,7 +39,7 @@ pub fn change(visuals: &Visuals, change: &crate::compare::Change) -> Color32 {
         Same => visuals.weak_text_color(),
         Added => pick(visuals, Color32::from_rgb(30, 120, 60), Color32::from_rgb(110, 200, 130)),
         Removed => pick(visuals, Color32::from_rgb(178, 40, 48), Color32::from_rgb(240, 110, 110)),
-        TypeChanged | EmptinessChanged => finding(visuals),
+        TypeChanged | EmptinessChanged | MovedTo(_) | MovedFrom(_) => finding(visuals),
     }
 }
 

@@ -99,13 +99,19 @@ pub struct Comparison {
     pub changes: Vec<crate::compare::FieldChange>,
     /// Each field of the open source, by path, and what happened to it.
     pub by_path: HashMap<String, crate::compare::Change>,
+    /// How the values of each field both sources have moved, by path.
+    pub drift: HashMap<String, crate::compare::drift::Drift>,
+    /// Fields in both sources, and how many of them drifted.
+    pub drift_summary: (usize, usize),
 }
 
 impl Comparison {
     pub fn new(before: &Scan, scan: Box<Scan>) -> Self {
-        let changes = crate::compare::compare_shapes(&before.shape, &scan.shape);
-        let by_path = changes.iter().map(|c| (c.path.clone(), c.change.clone())).collect();
-        Comparison { scan, changes, by_path }
+        let compared = crate::compare::compare(&before.shape, &scan.shape);
+        let by_path = compared.changes.iter().map(|c| (c.path.clone(), c.change.clone())).collect();
+        let drift_summary = (compared.drifts.len(), compared.drifts.iter().filter(|d| d.drifted()).count());
+        let drift = compared.drifts.into_iter().map(|d| (d.path.clone(), d)).collect();
+        Comparison { scan, changes: compared.changes, by_path, drift, drift_summary }
     }
 }
 

@@ -232,6 +232,15 @@ impl Kll {
         at_most as f64 / self.count as f64
     }
 
+    /// Every value held with its weight (2 to the power of its level),
+    /// ascending: the sketch's own picture of the distribution.
+    pub fn weighted(&self) -> Vec<(f64, u64)> {
+        let mut out: Vec<(f64, u64)> =
+            self.levels.iter().enumerate().flat_map(|(level, items)| items.iter().map(move |&k| (value(k), 1u64 << level))).collect();
+        out.sort_by(|a, b| a.0.total_cmp(&b.0));
+        out
+    }
+
     /// Values held, for the memory bound: O(k) regardless of the count.
     pub fn retained(&self) -> usize {
         self.levels.iter().map(Vec::len).sum()

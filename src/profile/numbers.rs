@@ -177,6 +177,20 @@ impl NumberStats {
         self.exact.is_some() || self.few.is_some()
     }
 
+    /// The finite values as ascending (value, weight) pairs, and whether
+    /// they are every value (else the quantile sketch's weighted sample).
+    pub fn distribution(&self) -> (Vec<(f64, u64)>, bool) {
+        match (&self.exact, &self.few) {
+            (Some(values), _) => {
+                let mut sorted = values.clone();
+                sorted.sort_by(f64::total_cmp);
+                (sorted.into_iter().map(|v| (v, 1)).collect(), true)
+            }
+            (None, Some(few)) => (few.sorted(), true),
+            (None, None) => (self.sketch.weighted(), false),
+        }
+    }
+
     /// Share of values strictly below `x` (from the sketch when not exact).
     pub fn share_below(&self, x: f64) -> f64 {
         let n = self.moments.count();
