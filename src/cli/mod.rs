@@ -64,6 +64,9 @@ pub struct CompareArgs {
     /// Exit 1 when this holds (may be given twice).
     #[arg(long, value_enum)]
     pub fail_on: Vec<FailOn>,
+    /// Write the later source's HTML report, with the drift, to this file.
+    #[arg(long, value_name = "FILE")]
+    pub html: Option<PathBuf>,
     #[command(flatten)]
     pub out: JsonOut,
 }
@@ -152,7 +155,10 @@ pub struct ProfileArgs {
     /// Write the JSON report to this file (written atomically).
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
-    /// Replace the --json file if it exists.
+    /// Write a self-contained HTML report to this file (written atomically).
+    #[arg(long, value_name = "FILE")]
+    pub html: Option<PathBuf>,
+    /// Replace the --json or --html file if it exists.
     #[arg(long)]
     pub force: bool,
     /// Read only the schema and metadata (the first rows for JSON and CSV).
@@ -217,10 +223,15 @@ fn run_profile(args: &ProfileArgs) -> ExitCode {
     };
     let report_options = ReportOptions { no_examples: args.no_examples };
     print!("{}", tree::render(&scan, report_options));
-    if let Some(json) = &args.json {
+    if args.json.is_some() || args.html.is_some() {
         let report = report::build(&scan, report_options);
-        if let Err(e) = report::write::write_atomically(json, report::to_json(&report).as_bytes(), args.force) {
-            return fail(&e);
+        let outputs = [(&args.json, report::to_json(&report)), (&args.html, report::html::render(&report, None))];
+        for (path, text) in outputs {
+            if let Some(path) = path
+                && let Err(e) = report::write::write_atomically(path, text.as_bytes(), args.force)
+            {
+                return fail(&e);
+            }
         }
     }
     match &scan.coverage {
@@ -378,6 +389,13 @@ fn run_compare(args: &CompareArgs) -> ExitCode {
         });
         let text = serde_json::to_string_pretty(&out).unwrap_or_default() + "\n";
         if let Err(e) = report::write::write_atomically(json, text.as_bytes(), args.out.force) {
+            return fail(&e);
+        }
+    }
+    if let Some(html) = &args.html {
+        let report = report::build(&scans[1], ReportOptions { no_examples: args.out.no_examples });
+        let page = report::html::render(&report, Some(&compared));
+        if let Err(e) = report::write::write_atomically(html, page.as_bytes(), args.out.force) {
             return fail(&e);
         }
     }

@@ -174,11 +174,11 @@ impl PlumblineApp {
                 self.state.area = Area::FieldSheet;
             }
             Intent::ShowArea(area) => self.state.area = area,
-            Intent::SaveText { text, file_name } => {
+            Intent::SaveText { text, file_name, title } => {
                 let (tx, rx) = channel();
                 let ctx = self.ctx.clone();
                 std::thread::spawn(move || {
-                    let target = rfd::FileDialog::new().set_title("Save the record types").set_file_name(&file_name).save_file();
+                    let target = rfd::FileDialog::new().set_title(title).set_file_name(&file_name).save_file();
                     if let Some(target) = target {
                         let outcome = std::fs::write(&target, text)
                             .map(|_| format!("Saved to {}", target.display()))

@@ -83,7 +83,11 @@ impl RecordTypes {
             }
             if ui.button("Save…").on_hover_text("Save the code to a file").clicked() {
                 let stem = types::default_root(scan);
-                intents.push(Intent::SaveText { text: generated.code.clone(), file_name: format!("{stem}.{}", lang.extension()) });
+                intents.push(Intent::SaveText {
+                    text: generated.code.clone(),
+                    file_name: format!("{stem}.{}", lang.extension()),
+                    title: "Save the record types",
+                });
             }
             if let Some(reader) = readable(lang)
                 && ui.button("Check against every row").on_hover_text("Read this code back and fit it to every row (shows Fit)").clicked()

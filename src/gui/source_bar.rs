@@ -32,6 +32,20 @@ impl SourceBar {
             if ui.button(if dark { "Light theme" } else { "Dark theme" }).on_hover_text("Switch the window's colours").clicked() {
                 ui.ctx().set_theme(if dark { egui::Theme::Light } else { egui::Theme::Dark });
             }
+            if let (Some(report), Some(scan)) = (&state.report, &state.scan)
+                && ui.button("Save report…").on_hover_text("Save the profile as one self-contained HTML file").clicked()
+            {
+                let stem = crate::types::default_root(scan);
+                let text = match &state.comparison {
+                    // With a second source open: the later one's report, with the drift.
+                    Some(c) => {
+                        let compared = crate::compare::compare(&scan.shape, &c.scan.shape);
+                        crate::report::html::render(&crate::report::build(&c.scan, Default::default()), Some(&compared))
+                    }
+                    None => crate::report::html::render(report, None),
+                };
+                intents.push(Intent::SaveText { text, file_name: format!("{stem}.html"), title: "Save the report" });
+            }
             ui.separator();
             if let Some(reading) = &state.reading {
                 ui.label(format!("Reading {}", reading.path.display()));

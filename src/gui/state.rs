@@ -22,8 +22,8 @@ pub enum Intent {
     /// Show the open dialog for a second source to compare with.
     ChooseCompareFile,
     OpenCompare(PathBuf),
-    /// Ask where to save `text` (the save dialog suggests `file_name`).
-    SaveText { text: String, file_name: String },
+    /// Ask where to save `text` (the save dialog, titled `title`, suggests `file_name`).
+    SaveText { text: String, file_name: String, title: &'static str },
     /// Narrow Rows further and show them.
     AddRowFilter(crate::explore::RowFilter),
     /// Remove the filter at this position.

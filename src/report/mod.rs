@@ -3,6 +3,7 @@
 //!
 //! Every key is documented in the README's "Report" section.
 
+pub mod html;
 pub mod write;
 
 use std::collections::BTreeMap;
