@@ -543,3 +543,21 @@ fn compare_prints_the_schema_changes_and_drift_and_gates_on_them() {
     let line = assert_one_error_line(&plumbline(&["compare", &old, &sample("nowhere.parquet")]));
     assert!(line.contains("nowhere.parquet"), "{line}");
 }
+
+#[test]
+fn html_reports_are_written_once_and_replaced_only_with_force() {
+    let dir = tempfile::tempdir().unwrap();
+    let html = dir.path().join("report.html");
+    let o = plumbline(&["profile", &sample("deliveries.parquet"), "--html", &html.display().to_string()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.starts_with("<!DOCTYPE html>"));
+    assert!(page.contains("<h1>Profile of deliveries.parquet</h1>"));
+    let again = assert_one_error_line(&plumbline(&["profile", &sample("deliveries.parquet"), "--html", &html.display().to_string()]));
+    assert!(again.contains("report.html"), "{again}");
+    let o = plumbline(&["compare", &sample("deliveries.parquet"), &sample("later/deliveries.parquet"), "--html", &html.display().to_string(), "--force"]);
+    assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("<h2>Compared with the earlier source</h2>"));
+    assert!(page.contains("▲ drifted"));
+}
