@@ -502,6 +502,15 @@ fn fit_errors_name_the_definition_and_the_position() {
     let o = plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]);
     assert_eq!(o.status.code(), Some(1), "{}", stdout(&o));
 
+    // Data that breaks part-way: no verdicts from part of the rows.
+    let broken = dir.path().join("broken.jsonl");
+    std::fs::write(&broken, "{\"id\": 1}\n{\"id\": 2}\n{\"id\": \n").unwrap();
+    let o = plumbline(&["fit", &broken.display().to_string(), &unnamed.display().to_string(), "--lang", "spark-ddl"]);
+    let line = assert_one_error_line(&o);
+    assert!(line.contains("broken.jsonl") && line.contains("line 3"), "{line}");
+    assert!(!line.contains("internal"), "{line}");
+    assert!(stdout(&o).is_empty(), "{}", stdout(&o));
+
     let line = assert_one_error_line(&plumbline(&["fit", &sample("nowhere.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]));
     assert!(line.contains("nowhere.parquet"), "{line}");
 }

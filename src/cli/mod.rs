@@ -295,6 +295,10 @@ fn run_fit(args: &FitArgs) -> ExitCode {
         Ok(s) => s,
         Err(e) => return fail(&e),
     };
+    if let scan::Coverage::Broken { error, .. } = &scan.coverage {
+        // A fit must see every row: a source that breaks part-way is an error.
+        return fail(error);
+    }
     let outcome = match fit::fit(&scan, open, &definition, FitOptions { deny_extra: args.deny_extra }, &stop) {
         Ok(f) => f,
         Err(e) => return fail(&e),

@@ -130,6 +130,9 @@ fn run(checked: &Checked, scan: &Scan) -> Outcome {
         Checked::Generated { code, lang } => (code.clone(), *lang, checked.label()),
     };
     let definition: Definition = fit::definition::read(&text, lang, None).map_err(|e| format!("{name}: {e}"))?;
+    if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
+        return Err(format!("a fit must see every row, and the source broke part-way: {error}"));
+    }
     let stop = AtomicBool::new(false);
     let outcome = fit::fit(scan, Default::default(), &definition, FitOptions::default(), &stop).map_err(|e| e.to_string())?;
     Ok((lang, outcome))

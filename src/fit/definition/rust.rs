@@ -246,6 +246,16 @@ impl Reader<'_> {
         };
         let scalar = |s: Scalar| Ok(Slot { ty: Ty::Scalar(s), nullable: false });
         let int = |bits: u8, signed: bool| scalar(Scalar::Int { bits, signed });
+        // A type the file declares wins over a library type of the same
+        // name (a struct of its own called `Value` or `Date`).
+        if p.path.segments.len() == 1
+            && let Some(&i) = self.index.get(&name)
+        {
+            return match &self.items[i] {
+                Item::Enum(e) => Ok(Slot { ty: self.enum_type(e)?, nullable: false }),
+                Item::Struct(_) => Ok(Slot { ty: Ty::Record(i), nullable: false }),
+            };
+        }
         match name.as_str() {
             "Option" => {
                 want(1)?;
@@ -288,13 +298,7 @@ impl Reader<'_> {
             "DateTime" | "OffsetDateTime" => scalar(Scalar::Instant { unit: Unit::Nano, zone: None }),
             "NaiveDateTime" | "PrimitiveDateTime" => scalar(Scalar::LocalDateTime { unit: Unit::Nano }),
             "Value" => Ok(Slot { ty: Ty::Any { why: "any JSON value".into() }, nullable: true }),
-            _ => match self.index.get(&name) {
-                Some(&i) => match &self.items[i] {
-                    Item::Enum(e) => Ok(Slot { ty: self.enum_type(e)?, nullable: false }),
-                    Item::Struct(_) => Ok(Slot { ty: Ty::Record(i), nullable: false }),
-                },
-                None => Err(error(span, &format!("`{name}` is neither a struct in this file nor a type Plumbline maps"))),
-            },
+            _ => Err(error(span, &format!("`{name}` is neither a struct in this file nor a type Plumbline maps"))),
         }
     }
 }
@@ -351,6 +355,14 @@ pub enum Weight { Number(f64), Text(String) }
         assert_eq!(variants.len(), 2);
         let Ty::Record(i) = root.fields[1].slot.ty else { panic!("a record") };
         assert_eq!(m.records[i].fields[1].slot.ty, Ty::Scalar(Scalar::Binary));
+    }
+
+    #[test]
+    fn a_struct_of_the_file_wins_over_a_library_type_of_that_name() {
+        let m = read("struct Row { v: Value, j: serde_json::Value }\nstruct Value { x: i32 }", None).unwrap();
+        let root = m.root();
+        assert!(matches!(root.fields[0].slot.ty, Ty::Record(_)), "{:?}", root.fields[0].slot.ty);
+        assert!(matches!(root.fields[1].slot.ty, Ty::Any { .. }));
     }
 
     #[test]
