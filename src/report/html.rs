@@ -120,13 +120,22 @@ fn tree(out: &mut String, report: &Report) {
         }
         let marks = f.findings.as_ref().map_or(0, Vec::len);
         let marker = if marks > 0 { format!(" · {marks} finding{}", if marks == 1 { "" } else { "s" }) } else { String::new() };
-        let _ = writeln!(out, "<li><a href=\"#f{i}\">{}</a> {}{marker}</li>", escape(&f.name), escape(&type_of(f)));
+        let _ = writeln!(out, "<li><a href=\"#f{i}\">{}</a> {}{marker}</li>", escape(&f.name), escape(&short_type(f)));
     }
     while depth > 0 {
         out.push_str("</ul>");
         depth -= 1;
     }
     out.push_str("</ul></div>\n");
+}
+
+/// The type without its members (`Struct`, `List`): the tree shows them below.
+fn short_type(f: &FieldEntry) -> String {
+    let full = type_of(f);
+    match full.split_once('(') {
+        Some((head, _)) if matches!(head, "Struct" | "List" | "LargeList" | "Map" | "FixedSizeList") => head.to_string(),
+        _ => full,
+    }
 }
 
 fn type_of(f: &FieldEntry) -> String {
