@@ -11,6 +11,7 @@ pub mod fit;
 pub mod format;
 pub mod gui;
 pub mod path;
+pub mod plan;
 pub mod profile;
 pub mod report;
 pub mod sample;

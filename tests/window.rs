@@ -413,3 +413,26 @@ fn the_generated_types_are_checked_against_every_row_and_a_definition_shows_its_
     h.step();
     assert_eq!(app(&h).state.selected.as_deref(), Some("note"));
 }
+
+#[test]
+fn a_report_opens_like_its_source_and_rows_say_there_are_none_behind_it() {
+    let dir = tempfile::tempdir().unwrap();
+    let report = dir.path().join("deliveries.report.json");
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_plumbline"))
+        .args(["profile".as_ref(), sample("deliveries.parquet").as_os_str(), "--json".as_ref(), report.as_os_str()])
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let mut h = window_sized(report.clone(), 1400.0);
+    wait_for_read(&mut h);
+    h.get_by_label_contains("· a report made by Plumbline on");
+    // The same statistics as the source's own profile shows (see above).
+    click(&mut h, "weight_kg   float32");
+    h.get_by_label("Float32, not null");
+    h.get_by_label("0.200926");
+    h.get_by_label("14.0744");
+    h.get_by_label("Histogram");
+    h.state_mut().as_mut().unwrap().state.area = plumbline::gui::state::Area::Rows;
+    h.step();
+    h.get_by_label_contains("is a report: it holds statistics, not rows");
+}

@@ -44,6 +44,34 @@ pub enum Command {
     /// Compare two sources: schema changes and drifted fields. Exit 0, or
     /// 1 when a --fail-on condition holds, 2 on an error.
     Compare(CompareArgs),
+    /// Write a plan that profiles the source where it lives, on a
+    /// distributed engine: a Spark SQL script and the PySpark driver that
+    /// runs it and writes a Plumbline report.
+    Plan(PlanArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct PlanArgs {
+    /// The data as the engine will read it: a local path, or a URI
+    /// (s3a://…, abfss://…, hdfs://…) together with --like.
+    pub source: String,
+    /// The engine to write the plan for.
+    #[arg(long, value_enum, default_value = "spark-sql")]
+    pub engine: crate::plan::Engine,
+    /// A local file or directory with the same schema as the source (one
+    /// part file, say), read for the fields when the source is not local.
+    #[arg(long, value_name = "PATH")]
+    pub like: Option<PathBuf>,
+    /// Write the script to FILE and the driver beside it (FILE with .py);
+    /// without it the script goes to standard output.
+    #[arg(short, long, value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Replace the output files if they exist.
+    #[arg(long)]
+    pub force: bool,
+    /// Read the local data as this format instead of detecting it.
+    #[arg(long, value_enum)]
+    pub format: Option<FormatChoice>,
 }
 
 /// What makes `compare` exit 1.
@@ -187,6 +215,7 @@ pub fn main() -> ExitCode {
         Some(Command::Types(args)) => run_types(&args),
         Some(Command::Fit(args)) => run_fit(&args),
         Some(Command::Compare(args)) => run_compare(&args),
+        Some(Command::Plan(args)) => run_plan(&args),
         None => match crate::gui::run(crate::gui::Start { path: cli.path, field: cli.field, area: cli.area, compare: cli.compare }) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
@@ -273,6 +302,69 @@ fn run_types(args: &TypesArgs) -> ExitCode {
             ExitCode::SUCCESS
         }
     }
+}
+
+fn run_plan(args: &PlanArgs) -> ExitCode {
+    let local = match &args.like {
+        Some(path) => path.clone(),
+        None if std::path::Path::new(&args.source).exists() => PathBuf::from(&args.source),
+        None => {
+            return fail(&format!(
+                "{} is not a local path: pass --like with a local file or part that has the same schema",
+                args.source
+            ));
+        }
+    };
+    let open = OpenOptions { format: args.format };
+    let stop = AtomicBool::new(false);
+    // A declared schema is enough; schema-less formats are read in full
+    // for their kinds (no statistics).
+    let mut options = ScanOptions { shape_only: true, ..Default::default() };
+    let mut scanned = scan::scan_path(&local, open, options, &stop, &mut |_| {});
+    if let Ok(s) = &scanned
+        && s.coverage != scan::Coverage::SchemaOnly
+    {
+        options = ScanOptions { skip_statistics: true, ..Default::default() };
+        scanned = scan::scan_path(&local, open, options, &stop, &mut |_| {});
+    }
+    let scan = match scanned {
+        Ok(s) => s,
+        Err(e) => return fail(&e),
+    };
+    if let scan::Coverage::Broken { error, .. } = &scan.coverage {
+        return fail(error);
+    }
+    // A local source is named absolutely: the driver may run elsewhere.
+    let source = match std::fs::canonicalize(&args.source) {
+        Ok(absolute) if args.like.is_none() => absolute.display().to_string(),
+        _ => args.source.clone(),
+    };
+    let plan = match crate::plan::build(&scan, &source) {
+        Ok(p) => p,
+        Err(e) => return fail(&format!("{}: {e}", local.display())),
+    };
+    let script = crate::plan::spark_sql::render(&plan, &crate::time::now_rfc3339());
+    let Some(output) = &args.output else {
+        print!("{script}");
+        eprintln!("note: the PySpark driver is written beside the script with -o FILE");
+        return ExitCode::SUCCESS;
+    };
+    let driver_path = output.with_extension("py");
+    if driver_path == *output {
+        return fail(&format!("{}: the script needs a name not ending in .py (the driver takes that)", output.display()));
+    }
+    for (path, text) in [(output, script), (&driver_path, crate::plan::driver(&plan))] {
+        if let Err(e) = report::write::write_atomically(path, text.as_bytes(), args.force) {
+            return fail(&e);
+        }
+    }
+    eprintln!(
+        "wrote {} and {}; run: spark-submit {} --report REPORT.json",
+        output.display(),
+        driver_path.display(),
+        driver_path.display()
+    );
+    ExitCode::SUCCESS
 }
 
 fn run_fit(args: &FitArgs) -> ExitCode {

@@ -30,6 +30,13 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
         info.parts,
         if info.parts == 1 { "" } else { "s" }
     );
+    if let Some(from) = &scan.from_report {
+        let by = from.engine.as_deref().unwrap_or("Plumbline");
+        let _ = writeln!(out, "read from the report {}, made by {by} on {}", from.file.display(), from.generated_at);
+        for note in &from.approximations {
+            let _ = writeln!(out, "  estimated: {note}");
+        }
+    }
     let facts = &info.facts;
     let mut fact_line = Vec::new();
     if let Some(g) = facts.row_groups {

@@ -5,6 +5,7 @@
 
 pub mod check;
 pub mod definition;
+mod from_report;
 pub mod rows;
 pub mod values;
 pub mod verdict;
@@ -36,6 +37,9 @@ pub struct Fit {
     pub verdicts: Vec<Verdict>,
     /// The pass was stopped early, so counts cover only part of the rows.
     pub partial: bool,
+    /// Checked against a report's statistics, not its rows: counts are the
+    /// places the report states, and no example rows are given.
+    pub from_report: bool,
 }
 
 impl Fit {
@@ -54,6 +58,17 @@ pub fn fit(scan: &Scan, open: OpenOptions, definition: &Definition, options: Fit
     let data = model::build(&scan.shape, Optionality::Observed, scan.coverage != Coverage::SchemaOnly);
     let sides = check::Sides { definition: &definition.model, lang: definition.lang, data: &data, data_is_text: scan.info.schema.is_none() };
     let findings = check::compare(&sides);
+    if scan.from_report.is_some() {
+        let verdicts = findings
+            .into_iter()
+            .map(|finding| {
+                // A difference the statistics cannot rule out counts as affecting rows.
+                let rows = from_report::affected(&scan.shape, &finding).unwrap_or(1);
+                Verdict::of(finding, rows, Vec::new(), options.deny_extra)
+            })
+            .collect();
+        return Ok(Fit { rows: scan.shape.rows, verdicts, partial: scan.coverage.is_partial(), from_report: true });
+    }
     let source = crate::source::open(&scan.info.path, open)?;
     let counts = rows::count(source, &findings, stop)?;
     let verdicts = findings
@@ -61,7 +76,7 @@ pub fn fit(scan: &Scan, open: OpenOptions, definition: &Definition, options: Fit
         .zip(counts.per_finding)
         .map(|(finding, (rows, examples))| Verdict::of(finding, rows, examples, options.deny_extra))
         .collect();
-    Ok(Fit { rows: counts.rows, verdicts, partial: counts.stopped })
+    Ok(Fit { rows: counts.rows, verdicts, partial: counts.stopped, from_report: false })
 }
 
 /// The verdicts as plain text, failing ones first, one per line with its
@@ -79,7 +94,9 @@ pub fn render(fit: &Fit, no_examples: bool) -> String {
         };
         let _ = writeln!(out, "{mark}: {}: {}", v.path, v.message);
         // A note's rows are every row that has the field: no news.
-        if v.rows > 0 && v.severity != Severity::Note {
+        if fit.from_report && v.severity == Severity::Fails {
+            out.push_str("    (from the report's statistics; its rows were not read)\n");
+        } else if v.rows > 0 && v.severity != Severity::Note {
             let _ = write!(out, "    {} of {} rows", crate::format::group_digits(v.rows), crate::format::group_digits(fit.rows));
             if !no_examples && !v.examples.is_empty() {
                 let shown: Vec<String> = v.examples.iter().map(|e| if e.value.is_empty() { format!("row {}", e.row) } else { format!("row {}: {}", e.row, e.value) }).collect();
@@ -90,13 +107,17 @@ pub fn render(fit: &Fit, no_examples: bool) -> String {
     }
     let failing = fit.verdicts.iter().filter(|v| v.severity == Severity::Fails).count();
     let rows = crate::format::group_digits(fit.rows);
-    if failing == 0 {
+    if failing == 0 && fit.from_report {
+        let _ = writeln!(out, "Fits: nothing in the report's statistics of its {rows} rows fails to fit the definition.");
+    } else if failing == 0 {
         let _ = writeln!(out, "Fits: every one of the {rows} rows read fits the definition.");
     } else {
         let (s, verb) = if failing == 1 { ("", "makes") } else { ("s", "make") };
         let _ = writeln!(out, "Does not fit: {failing} difference{s} {verb} rows of the {rows} read fail.");
     }
-    if fit.partial {
+    if fit.from_report {
+        out.push_str("Checked against a report's statistics, not its rows: a difference they cannot rule out counts as failing.\n");
+    } else if fit.partial {
         out.push_str("PARTIAL: the pass was stopped; the counts cover only the rows read.\n");
     }
     out

@@ -50,6 +50,15 @@ impl RowsArea {
             ui.weak("Open a source to see its rows.");
             return intents;
         };
+        if let Some(from) = &scan.from_report {
+            // A report holds statistics only; its rows are where its source is.
+            ui.weak(format!(
+                "{} is a report: it holds statistics, not rows. Open its source, {}, to see them.",
+                from.file.display(),
+                scan.info.path.display()
+            ));
+            return intents;
+        }
         if self.worker.is_none() || self.generation != state.generation {
             let ctx = ui.ctx().clone();
             *self = RowsArea { generation: state.generation, ..RowsArea::default() };

@@ -82,6 +82,13 @@ impl SourceBar {
                 if !info.facts.codecs.is_empty() {
                     ui.label(format!("· {}", info.facts.codecs.join(", ")));
                 }
+                if let Some(from) = &scan.from_report {
+                    let by = from.engine.as_deref().unwrap_or("Plumbline");
+                    let label = ui.label(format!("· a report made by {by} on {} ({})", from.generated_at, from.file.display()));
+                    if !from.approximations.is_empty() {
+                        label.on_hover_text(format!("Estimated:\n{}", from.approximations.join("\n")));
+                    }
+                }
                 match scan.coverage.describe() {
                     Some(note) => {
                         ui.colored_label(ui.visuals().warn_fg_color, format!("Partial: {note}"));

@@ -3,7 +3,7 @@
 //! most 60 buckets over the range (so usually 10–60; fewer when even hours
 //! are too many and days too few), and years however many it takes.
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use super::numbers::NumberStats;
 use crate::time::{civil_from_days, days_from_civil, rfc3339_from_unix};
@@ -11,7 +11,7 @@ use crate::time::{civil_from_days, days_from_civil, rfc3339_from_unix};
 /// Most buckets a calendar histogram has.
 pub const MAX_BUCKETS: usize = 60;
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Unit {
     Hour,
@@ -21,7 +21,7 @@ pub enum Unit {
     Year,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Bucket {
     pub label: String,
     pub count: u64,
@@ -33,7 +33,7 @@ pub struct Bucket {
     pub end: i64,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct CalendarHistogram {
     pub unit: Unit,
     pub buckets: Vec<Bucket>,

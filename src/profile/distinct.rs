@@ -45,6 +45,8 @@ type Build = BuildHasherDefault<PassThrough>;
 enum State {
     Exact(HashSet<u64, Build>),
     Sketch(Box<HyperLogLogPlus<u64, Build>>),
+    /// A count read back from a report; values added later are not counted.
+    Reported(DistinctCount),
 }
 
 #[derive(Clone)]
@@ -58,6 +60,7 @@ impl std::fmt::Debug for Distinct {
         match &self.state {
             State::Exact(set) => write!(f, "Distinct(exact, {})", set.len()),
             State::Sketch(_) => write!(f, "Distinct(sketch)"),
+            State::Reported(c) => write!(f, "Distinct(reported, {})", c.value),
         }
     }
 }
@@ -94,6 +97,11 @@ impl Distinct {
         }
     }
 
+    /// A count as a report states it.
+    pub fn reported(count: DistinctCount) -> Self {
+        Distinct { state: State::Reported(count), budget: EXACT_BUDGET }
+    }
+
     /// Adds a value by its 64-bit hash (see [`hash_bytes`]).
     pub fn add_hash(&mut self, hash: u64) {
         match &mut self.state {
@@ -104,6 +112,7 @@ impl Distinct {
                 }
             }
             State::Sketch(sketch) => sketch.insert(&hash),
+            State::Reported(_) => {}
         }
     }
 
@@ -135,6 +144,8 @@ impl Distinct {
             (State::Sketch(mine), State::Sketch(theirs)) => {
                 mine.merge(theirs.as_ref()).expect("same precision");
             }
+            // Reports are read, not merged: a reported count stays as stated.
+            (State::Reported(_), _) | (_, State::Reported(_)) => {}
         }
     }
 
@@ -146,6 +157,7 @@ impl Distinct {
                 let estimate = sketch.as_ref().clone().count();
                 DistinctCount { value: estimate.round() as u64, exact: false, standard_error: standard_error() }
             }
+            State::Reported(count) => *count,
         }
     }
 }

@@ -38,6 +38,9 @@ pub struct Instants {
     pub count: u64,
     pub future: u64,
     pub seconds: NumberStats,
+    /// The calendar histogram as a report states it (statistics read back
+    /// from a report, whose `seconds` only approximate the distribution).
+    pub calendar: Option<super::calendar::CalendarHistogram>,
 }
 
 /// When this process first profiled, in epoch seconds: the "now" that
@@ -119,6 +122,7 @@ impl FieldStats {
             count: 0,
             future: 0,
             seconds: NumberStats::with_limit(limit),
+            calendar: None,
         });
         i.min = i.min.min(lo);
         i.max = i.max.max(hi);

@@ -68,6 +68,30 @@ impl Moments {
         self.max = self.max.max(other.max);
     }
 
+    /// Moments as a report states them. Without a standard deviation the
+    /// variance is unknown (`variance` gives `None`).
+    pub fn from_summary(count: u64, mean: f64, std: Option<f64>, min: f64, max: f64) -> Moments {
+        let m2 = match std {
+            Some(s) if count > 1 => {
+                // The sum of squares whose standard deviation is `s` to the
+                // last bit (rounding in s² · (n − 1) can move it an ulp).
+                let n1 = (count - 1) as f64;
+                let mut m2 = s * s * n1;
+                for _ in 0..16 {
+                    let got = (m2 / n1).sqrt();
+                    if got == s {
+                        break;
+                    }
+                    m2 = if got < s { m2.next_up() } else { m2.next_down() };
+                }
+                m2
+            }
+            Some(_) => 0.0,
+            None => f64::NAN,
+        };
+        Moments { count, mean, m2, min, max }
+    }
+
     pub fn count(&self) -> u64 {
         self.count
     }
@@ -78,7 +102,7 @@ impl Moments {
 
     /// Sample variance (divisor n − 1), as the references certify.
     pub fn variance(&self) -> Option<f64> {
-        (self.count > 1).then(|| self.m2 / (self.count - 1) as f64)
+        (self.count > 1 && !self.m2.is_nan()).then(|| self.m2 / (self.count - 1) as f64)
     }
 
     /// Sample standard deviation.

@@ -29,7 +29,27 @@ pub struct NumberStats {
     pub neg_inf: u64,
     /// Every finite value was a whole number (histogram bins ≥ 1 wide).
     fractional: bool,
+    /// Quantiles and histogram as a report states them (for statistics
+    /// read back from a report; the sketch then holds an approximation
+    /// of the distribution built from them).
+    reported: Option<Box<Reported>>,
 }
+
+/// What a report states beyond the moments.
+#[derive(Debug, Clone, Default)]
+pub struct Reported {
+    pub quantiles: Option<QuantileSet>,
+    pub histogram: Option<Histogram>,
+    pub nan: u64,
+    pub infinite: u64,
+    /// Every finite value with its count, when the report lists them all
+    /// (as top values): the distribution is then known exactly.
+    pub every_value: Vec<(f64, u64)>,
+}
+
+/// Points each histogram bin is spread over when a distribution is rebuilt
+/// from a report.
+const POINTS_PER_BIN: u64 = 8;
 
 /// The quantiles, and whether they are exact.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -42,7 +62,7 @@ pub struct QuantileSet {
     pub rank_error: Option<f64>,
 }
 
-#[derive(Debug, Clone, PartialEq, Serialize)]
+#[derive(Debug, Clone, PartialEq, Serialize, serde::Deserialize)]
 pub struct Histogram {
     pub edges: Vec<f64>,
     pub counts: Vec<u64>,
@@ -80,6 +100,54 @@ impl NumberStats {
         if let Some(few) = self.few.take() {
             few.pairs().for_each(|(v, c)| self.sketch.add_weighted(v, c));
             self.sketch.settle();
+        }
+    }
+
+    /// Statistics read back from a report: exact moments, the stated
+    /// quantiles and histogram, and a distribution rebuilt from them (the
+    /// histogram's counts spread evenly in each bin; else weight at the
+    /// quantiles; every value when the report lists them all) for
+    /// comparisons. Never exact.
+    pub fn from_report(moments: Moments, reported: Reported) -> NumberStats {
+        let mut sketch = Kll::default();
+        let (lo, hi) = (moments.min().unwrap_or(0.0), moments.max().unwrap_or(0.0));
+        if !reported.every_value.is_empty() {
+            reported.every_value.iter().for_each(|&(v, c)| sketch.add_weighted(v, c));
+        } else if let Some(h) = reported.histogram.as_ref().filter(|h| h.edges.len() == h.counts.len() + 1) {
+            for (i, &count) in h.counts.iter().enumerate() {
+                let (a, b) = (h.edges[i], h.edges[i + 1]);
+                let points = count.min(POINTS_PER_BIN);
+                for j in 0..points {
+                    let weight = count / points + u64::from(j < count % points);
+                    sketch.add_weighted((a + (b - a) * (j as f64 + 0.5) / points as f64).clamp(lo, hi), weight);
+                }
+            }
+        } else if let Some(q) = reported.quantiles.as_ref().filter(|q| q.values.len() == PROFILE_PROBABILITIES.len()) {
+            let n = moments.count() as f64;
+            let mut at = vec![(lo, 0.0)];
+            at.extend(q.values.iter().copied().zip(PROFILE_PROBABILITIES));
+            at.push((hi, 1.0));
+            for pair in at.windows(2) {
+                let weight = ((pair[1].1 - pair[0].1) * n).round() as u64;
+                if weight > 0 && pair[1].0.is_finite() {
+                    sketch.add_weighted(pair[1].0, weight);
+                }
+            }
+        } else if let Some(mean) = moments.mean() {
+            sketch.add_weighted(mean, moments.count());
+        }
+        sketch.settle();
+        NumberStats {
+            moments,
+            sketch,
+            exact: None,
+            exact_limit: EXACT_SAMPLE,
+            few: None,
+            nan: reported.nan,
+            pos_inf: reported.infinite,
+            neg_inf: 0,
+            fractional: true,
+            reported: Some(Box::new(reported)),
         }
     }
 
@@ -172,6 +240,11 @@ impl NumberStats {
         self.neg_inf += other.neg_inf;
     }
 
+    /// Whether these statistics were read back from a report.
+    pub fn is_reported(&self) -> bool {
+        self.reported.is_some()
+    }
+
     /// True while every value is kept or counted by value (statistics are exact).
     pub fn is_exact(&self) -> bool {
         self.exact.is_some() || self.few.is_some()
@@ -207,6 +280,9 @@ impl NumberStats {
     pub fn quantiles(&self) -> Option<QuantileSet> {
         if self.moments.count() == 0 {
             return None;
+        }
+        if let Some(r) = &self.reported {
+            return r.quantiles.clone();
         }
         Some(match (&self.exact, &self.few) {
             (Some(values), _) => QuantileSet {
@@ -254,6 +330,9 @@ impl NumberStats {
     pub fn histogram(&self) -> Option<Histogram> {
         if self.moments.count() == 0 {
             return None;
+        }
+        if let Some(r) = &self.reported {
+            return r.histogram.clone();
         }
         if let Some(values) = &self.exact {
             let edges = histogram::auto_edges_with(values, !self.fractional);

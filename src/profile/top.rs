@@ -103,6 +103,8 @@ pub struct TopValues {
     counters: usize,
     /// Counts gathered while shrinking, kept for the next time.
     scratch: Vec<u64>,
+    /// A report's stated bound on undercounts, for values read back from it.
+    reported_undercount: Option<u64>,
 }
 
 impl Default for TopValues {
@@ -112,7 +114,7 @@ impl Default for TopValues {
 }
 
 /// One top value.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct TopValue {
     pub value: String,
     pub count: u64,
@@ -127,7 +129,21 @@ impl TopValues {
             exact_limit,
             counters: counters.min(exact_limit),
             scratch: Vec::new(),
+            reported_undercount: None,
         }
+    }
+
+    /// Top values as a report lists them, out of `total` values counted.
+    pub fn reported(values: &[TopValue], total: u64, exact: bool, max_undercount: u64) -> Self {
+        let mut top = TopValues::with_limits(EXACT_VALUES, COUNTERS);
+        for v in values {
+            let hash = super::distinct::hash_bytes(v.value.as_bytes());
+            top.counts.entry(hash).or_insert((0, Kept::Text(v.value.clone()))).0 += v.count;
+        }
+        top.total = total;
+        top.summarised = !exact;
+        top.reported_undercount = Some(max_undercount);
+        top
     }
 
     /// Changes the limits; a field already past the new exact limit is summarised now.
@@ -215,7 +231,11 @@ impl TopValues {
     }
 
     pub fn max_undercount(&self) -> u64 {
-        if self.summarised { self.total / (self.counters as u64 + 1) } else { 0 }
+        match self.reported_undercount {
+            Some(stated) => stated,
+            None if self.summarised => self.total / (self.counters as u64 + 1),
+            None => 0,
+        }
     }
 
     pub fn total(&self) -> u64 {

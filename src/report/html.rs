@@ -77,16 +77,22 @@ pub fn render(report: &Report, compared: Option<&Compared>) -> String {
 fn facts(out: &mut String, report: &Report) {
     let s = &report.source;
     let rows = s.rows.map_or_else(|| "rows unknown".to_string(), |r| format!("{} rows", group_digits(r)));
+    let size = s.bytes.map_or_else(|| "size unknown".to_string(), human_bytes);
+    let parts = s.parts.map_or_else(|| "parts unknown".to_string(), |p| format!("{} part{}", group_digits(p as u64), if p == 1 { "" } else { "s" }));
+    let made_by = match &report.engine {
+        Some(engine) => format!("computed by {} for Plumbline", escape(engine)),
+        None => "made by Plumbline".to_string(),
+    };
     let _ = writeln!(
         out,
-        "<p class=\"facts\">{} · {} · {} · {rows} · {} part{} · made by Plumbline on {}</p>",
+        "<p class=\"facts\">{} · {} · {size} · {rows} · {parts} · {made_by} on {}</p>",
         escape(&s.path),
-        escape(s.format),
-        human_bytes(s.bytes),
-        group_digits(s.parts as u64),
-        if s.parts == 1 { "" } else { "s" },
+        escape(&s.format),
         escape(&report.generated_at)
     );
+    for note in &report.approximations {
+        let _ = writeln!(out, "<p class=\"note\">Estimated: {}</p>", escape(note));
+    }
     if let Some(note) = &report.coverage_note {
         let _ = writeln!(out, "<p class=\"note\">{}: {}</p>", if report.partial { "PARTIAL" } else { "Note" }, escape(note));
     }

@@ -4,11 +4,12 @@
 //! Every key is documented in the README's "Report" section.
 
 pub mod html;
+pub mod read;
 pub mod write;
 
 use std::collections::BTreeMap;
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 use crate::scan::Scan;
 use crate::shape::{FieldShape, Role};
@@ -22,27 +23,34 @@ pub struct ReportOptions {
     pub no_examples: bool,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Report {
     pub plumbline_report: u32,
     pub generated_at: String,
     /// True when the fields describe only part of the rows.
     pub partial: bool,
     /// Why the report is partial or schema-only; absent when complete.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub coverage_note: Option<String>,
     pub shape_only: bool,
     /// True when the fields describe a uniform sample of the rows read.
     pub sampled: bool,
     /// How the sample was drawn; absent when every row was profiled.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub sample: Option<SampleSection>,
     pub examples_included: bool,
+    /// The engine that computed a lake plan's report (`"spark"`); absent
+    /// for Plumbline's own profiles.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub engine: Option<String>,
+    /// What the engine estimated rather than counted, and within what error.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub approximations: Vec<String>,
     pub source: SourceSection,
     pub fields: Vec<FieldEntry>,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SampleSection {
     /// Rows in the sample (also `source.rows`).
     pub rows: u64,
@@ -51,19 +59,21 @@ pub struct SampleSection {
     pub seed: u64,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct SourceSection {
     pub path: String,
-    pub format: &'static str,
+    pub format: String,
     pub compression: Compression,
-    pub bytes: u64,
+    /// Size on disk; null when the engine that wrote the report did not say.
+    pub bytes: Option<u64>,
     /// Rows read, or the row count the metadata states when no rows were read.
     pub rows: Option<u64>,
-    pub parts: usize,
+    pub parts: Option<usize>,
+    #[serde(default)]
     pub facts: Facts,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct FieldEntry {
     pub path: String,
     pub name: String,
@@ -71,24 +81,26 @@ pub struct FieldEntry {
     pub role: Role,
     /// Arrow's display of the declared type; null when the format has none.
     pub declared_type: Option<String>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub declared_nullable: Option<bool>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub parquet: Option<crate::source::parquet::ParquetLeaf>,
     /// What the values come to: `int (uint8)`, `string (timestamp)`, `mixed: …`.
     pub observed: String,
-    pub kinds: BTreeMap<&'static str, u64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    pub kinds: BTreeMap<String, u64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub int_range: Option<[i128; 2]>,
-    #[serde(skip_serializing_if = "BTreeMap::is_empty")]
-    pub string_forms: BTreeMap<&'static str, u64>,
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub string_forms: BTreeMap<String, u64>,
     pub count: u64,
     pub nulls: u64,
     pub missing: u64,
     /// For mixed fields: values of the minority kinds, with their row.
+    #[serde(default)]
     pub examples: Vec<ExampleEntry>,
     /// Quality notes with the values behind them (absent for `--shape-only`).
-    #[serde(skip_serializing_if = "Option::is_none")]
+    /// Not read back: a report read in is judged afresh from its statistics.
+    #[serde(skip_deserializing, skip_serializing_if = "Option::is_none")]
     pub findings: Option<Vec<crate::profile::findings::Finding>>,
     /// Statistics (absent for `--shape-only`).
     #[serde(flatten, skip_serializing_if = "Option::is_none")]
@@ -96,70 +108,70 @@ pub struct FieldEntry {
 }
 
 /// Statistics of a field's values. Numbers: ints, floats and decimals.
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct StatsEntry {
     /// Distinct non-null scalar values; absent for objects, arrays and maps.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub distinct: Option<u64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub distinct_exact: Option<bool>,
     /// Relative standard error of a sketched distinct count.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub distinct_error: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub min: Option<serde_json::Value>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub max: Option<serde_json::Value>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub mean: Option<f64>,
     /// Sample standard deviation (n − 1).
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub std: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub quantiles: Option<Quantiles>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub quantiles_exact: Option<bool>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub quantiles_rank_error: Option<f64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub histogram: Option<crate::profile::numbers::Histogram>,
     /// The 20 most frequent scalar values (left out under `--no-examples`).
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub top: Option<Vec<crate::profile::top::TopValue>>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub top_exact: Option<bool>,
     /// When not exact: each count may be low by at most this much.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub top_max_undercount: Option<u64>,
     /// Text: length in characters.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub lengths: Option<Lengths>,
     /// Lists and maps: elements per value `{min, mean, max, histogram}`.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub list_lengths: Option<Lengths>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub empty: Option<u64>,
     /// Text with leading or trailing whitespace.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub padded: Option<u64>,
     /// Instants (zoned timestamps, RFC 3339 text): earliest and latest, UTC.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub earliest: Option<String>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub latest: Option<String>,
     /// Share of instants after the profile started.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub future_share: Option<f64>,
     /// Instants per calendar bucket: `{unit, buckets: [{label, count}], exact}`.
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub calendar: Option<crate::profile::calendar::CalendarHistogram>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub nan: Option<u64>,
-    #[serde(skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none")]
     pub infinite: Option<u64>,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Lengths {
     pub min: f64,
     pub mean: f64,
@@ -170,7 +182,7 @@ pub struct Lengths {
 /// Top values kept in the report (the categorical histogram: these plus "other").
 pub const TOP_VALUES: usize = 20;
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Quantiles {
     pub p1: f64,
     pub p5: f64,
@@ -181,9 +193,9 @@ pub struct Quantiles {
     pub p99: f64,
 }
 
-#[derive(Debug, Serialize)]
+#[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ExampleEntry {
-    pub kind: &'static str,
+    pub kind: String,
     pub row: u64,
     pub value: String,
 }
@@ -198,20 +210,22 @@ pub fn build(scan: &Scan, options: ReportOptions) -> Report {
     scan.shape.walk(|f, depth| fields.push(field_entry(f, depth, options)));
     Report {
         plumbline_report: REPORT_VERSION,
-        generated_at: crate::time::now_rfc3339(),
+        generated_at: scan.from_report.as_ref().map_or_else(crate::time::now_rfc3339, |r| r.generated_at.clone()),
         partial: scan.coverage.is_partial(),
         coverage_note: scan.coverage.describe(),
         shape_only: matches!(scan.coverage, crate::scan::Coverage::SchemaOnly | crate::scan::Coverage::FirstRows(_)),
         sampled: scan.sample.is_some(),
         sample: scan.sample.map(|s| SampleSection { rows: scan.shape.rows, from_rows: s.from_rows, seed: s.seed }),
         examples_included: !options.no_examples,
+        engine: scan.from_report.as_ref().and_then(|r| r.engine.clone()),
+        approximations: scan.from_report.as_ref().map(|r| r.approximations.clone()).unwrap_or_default(),
         source: SourceSection {
             path: info.path.display().to_string(),
-            format: info.format.label(),
+            format: info.format.label().to_string(),
             compression: info.compression,
-            bytes: info.bytes,
+            bytes: Some(info.bytes),
             rows,
-            parts: info.parts,
+            parts: Some(info.parts),
             facts: info.facts.clone(),
         },
         fields,
@@ -224,7 +238,7 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
     } else {
         f.minority_examples()
             .into_iter()
-            .map(|(kind, e)| ExampleEntry { kind: kind.name(), row: e.row, value: e.value.clone() })
+            .map(|(kind, e)| ExampleEntry { kind: kind.name().to_string(), row: e.row, value: e.value.clone() })
             .collect()
     };
     FieldEntry {
@@ -236,9 +250,9 @@ fn field_entry(f: &FieldShape, depth: usize, options: ReportOptions) -> FieldEnt
         declared_nullable: f.declared.as_ref().map(|d| d.nullable),
         parquet: f.declared.as_ref().and_then(|d| d.parquet.clone()),
         observed: crate::shape::observed_label(&f.kinds),
-        kinds: f.kinds.iter().map(|(k, n)| (k.name(), n)).collect(),
+        kinds: f.kinds.iter().map(|(k, n)| (k.name().to_string(), n)).collect(),
         int_range: f.kinds.int_range.map(|(lo, hi)| [lo, hi]),
-        string_forms: f.kinds.forms.iter().collect(),
+        string_forms: f.kinds.forms.iter().map(|(form, n)| (form.to_string(), n)).collect(),
         count: f.count,
         nulls: f.nulls(),
         missing: f.missing,
@@ -300,7 +314,10 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, option
         earliest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.min)),
         latest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.max)),
         future_share: stats.instants.as_ref().map(|i| i.future as f64 / i.count.max(1) as f64),
-        calendar: stats.instants.as_ref().and_then(|i| crate::profile::calendar::histogram(&i.seconds)),
+        calendar: stats
+            .instants
+            .as_ref()
+            .and_then(|i| if i.seconds.is_reported() { i.calendar.clone() } else { crate::profile::calendar::histogram(&i.seconds) }),
         nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
         infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }

@@ -72,6 +72,8 @@ pub enum Coverage {
     Stopped(u64),
     /// The source broke after this many rows; the message says where.
     Broken { rows: u64, error: String },
+    /// Read from a partial report, which says why in its own words.
+    PartialReport(String),
 }
 
 impl Coverage {
@@ -87,6 +89,7 @@ impl Coverage {
             Coverage::FirstRows(n) => Some(format!("inferred from the first {n} rows only")),
             Coverage::Stopped(n) => Some(format!("stopped by the user after {n} rows")),
             Coverage::Broken { rows, error } => Some(format!("the source broke after {rows} rows: {error}")),
+            Coverage::PartialReport(note) => Some(note.clone()),
         }
     }
 }
@@ -98,6 +101,21 @@ pub struct Scan {
     pub coverage: Coverage,
     /// Set when the Shape describes a sample smaller than the rows read.
     pub sample: Option<Sampled>,
+    /// Set when the scan was read back from a report rather than the data.
+    pub from_report: Option<FromReport>,
+}
+
+/// Where a scan read from a report came from: there are no rows behind
+/// it to page through or check, only the report's statistics.
+#[derive(Debug, Clone, PartialEq)]
+pub struct FromReport {
+    pub file: std::path::PathBuf,
+    /// The engine that computed it (`spark`), or `None` for Plumbline.
+    pub engine: Option<String>,
+    /// What the engine estimated, and within what error.
+    pub approximations: Vec<String>,
+    /// When the report was made (RFC 3339).
+    pub generated_at: String,
 }
 
 /// Opens `path` and reads its Shape. Errors opening the source are returned;
@@ -109,6 +127,10 @@ pub fn scan_path(
     stop: &AtomicBool,
     progress: &mut dyn FnMut(Progress),
 ) -> Result<Scan, SourceError> {
+    // A report stands for its source (unless a data format is forced).
+    if open.format.is_none() && crate::report::read::looks_like_report(path) {
+        return crate::report::read::read(path);
+    }
     let mut source = source::open(path, open)?;
     Ok(scan_source(source.as_mut(), options, stop, progress))
 }
@@ -123,7 +145,7 @@ pub fn scan_source(
     let mut builder = ShapeBuilder::new(&info, options.profiles());
     let has_schema = info.schema.is_some();
     if options.shape_only && has_schema {
-        return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly, sample: None };
+        return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly, sample: None, from_report: None };
     }
     if !options.shape_only
         && let Some(sample) = options.sample
@@ -165,7 +187,7 @@ pub fn scan_source(
         }
         next = following;
     };
-    Scan { info, shape: builder.finish(), coverage, sample: None }
+    Scan { info, shape: builder.finish(), coverage, sample: None, from_report: None }
 }
 
 fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {

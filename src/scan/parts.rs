@@ -62,5 +62,5 @@ pub(super) fn scan_parts(
         }
         progress(Progress { done: merged.rows(), total });
     }
-    Scan { info, shape: merged.finish(), coverage, sample: None }
+    Scan { info, shape: merged.finish(), coverage, sample: None, from_report: None }
 }

@@ -50,5 +50,5 @@ pub(super) fn scan_sample(
     // Examples name the row of the file, not of the sample.
     builder.renumber_examples(&stream_rows);
     let sample = (from_rows > builder.rows()).then_some(Sampled { from_rows, seed: options.seed });
-    Scan { info, shape: builder.finish(), coverage, sample }
+    Scan { info, shape: builder.finish(), coverage, sample, from_report: None }
 }

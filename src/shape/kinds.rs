@@ -68,6 +68,11 @@ impl Kind {
         }
     }
 
+    /// The kind a report names by its [`Self::name`].
+    pub fn from_name(name: &str) -> Option<Kind> {
+        Kind::ALL.into_iter().find(|k| k.name() == name)
+    }
+
     fn index(self) -> usize {
         self as usize
     }

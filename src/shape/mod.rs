@@ -16,9 +16,10 @@ pub mod strings;
 
 use std::collections::{BTreeMap, HashMap};
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 pub use declared::Declared;
+pub use from_arrow::kind_of;
 pub use kinds::{Kind, KindCounts, Unified};
 
 use crate::profile::budget::Budget;
@@ -32,7 +33,7 @@ pub const EXAMPLES_PER_KIND: usize = 3;
 pub const EXAMPLE_CHARS: usize = 80;
 
 /// How a field hangs from its parent.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Role {
     Member,

@@ -54,6 +54,21 @@ impl StringForms {
     }
 
     /// (name, count) pairs with a non-zero count.
+    /// Sets the count of the form a report names; `None` for an unknown name.
+    pub fn set(&mut self, name: &str, n: u64) -> Option<()> {
+        let slot = match name {
+            "timestamp" => &mut self.timestamp,
+            "timestamp_no_zone" => &mut self.timestamp_no_zone,
+            "date" => &mut self.date,
+            "uuid" => &mut self.uuid,
+            "integer" => &mut self.integer,
+            "decimal" => &mut self.decimal,
+            _ => return None,
+        };
+        *slot = n;
+        Some(())
+    }
+
     pub fn iter(&self) -> impl Iterator<Item = (&'static str, u64)> {
         [
             ("timestamp", self.timestamp),

@@ -10,7 +10,7 @@ use std::sync::atomic::{AtomicU64, Ordering};
 use super::error::SourceError;
 use super::limits::{MAX_DECOMPRESSION_RATIO, RATIO_CHECK_AFTER_BYTES};
 
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum Compression {
     None,

@@ -35,6 +35,13 @@ impl Format {
         }
     }
 
+    /// The format a report names by its [`Self::label`].
+    pub fn from_label(label: &str) -> Option<Format> {
+        [Format::Parquet, Format::ArrowFile, Format::ArrowStream, Format::Json, Format::JsonLines, Format::Csv, Format::Tsv]
+            .into_iter()
+            .find(|f| f.label() == label)
+    }
+
     pub fn is_text(self) -> bool {
         matches!(self, Format::Json | Format::JsonLines | Format::Csv | Format::Tsv)
     }

@@ -74,6 +74,9 @@ pub enum SourceError {
     },
     #[error("{}: {message}", path.display())]
     Directory { path: PathBuf, message: String },
+    /// A Plumbline report that cannot be read back.
+    #[error("{}: {message}", path.display())]
+    Report { path: PathBuf, message: String },
     /// A failure of Plumbline itself (an Arrow operation on valid data).
     #[error("{}: internal error: {message}", path.display())]
     Internal { path: PathBuf, message: String },
@@ -99,6 +102,7 @@ impl SourceError {
             | SourceError::Empty { path }
             | SourceError::Limit { path, .. }
             | SourceError::Directory { path, .. }
+            | SourceError::Report { path, .. }
             | SourceError::Internal { path, .. } => path,
         }
     }

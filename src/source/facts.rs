@@ -2,13 +2,14 @@
 
 use std::collections::BTreeMap;
 
-use serde::Serialize;
+use serde::{Deserialize, Serialize};
 
 /// Longest metadata value kept verbatim; longer ones (e.g. the base64
 /// `ARROW:schema` blob) are cut and their length stated.
 const MAX_METADATA_VALUE_CHARS: usize = 200;
 
-#[derive(Debug, Clone, Default, Serialize, PartialEq)]
+#[derive(Debug, Clone, Default, Serialize, Deserialize, PartialEq)]
+#[serde(default)]
 pub struct Facts {
     /// Parquet: row groups in the footer.
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -42,7 +43,7 @@ pub struct Facts {
     pub schema_differences: Vec<String>,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct ColumnFacts {
     pub path: String,
     pub physical_type: String,
@@ -50,7 +51,7 @@ pub struct ColumnFacts {
     pub uncompressed_bytes: u64,
 }
 
-#[derive(Debug, Clone, Serialize, PartialEq)]
+#[derive(Debug, Clone, Serialize, Deserialize, PartialEq)]
 pub struct DelimitedFacts {
     pub delimiter: String,
     pub header: bool,

@@ -24,7 +24,7 @@ use super::{ARROW_BATCH_ROWS, Batch, Compression, Facts, Format, Progress, Sourc
 use crate::path;
 
 /// The Parquet side of a leaf column's declared type.
-#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 pub struct ParquetLeaf {
     pub physical: String,
     #[serde(skip_serializing_if = "Option::is_none")]
