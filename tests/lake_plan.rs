@@ -309,3 +309,36 @@ fn quantiles_within_rank_error(errors: &mut Vec<String>, at: &str, local: &plumb
         check!(errors, below <= p + epsilon && at_or_below >= p - epsilon, "{at}: p{} = {v}: {below} below, {at_or_below} at or below", p * 100.0);
     }
 }
+
+/// The driver as a user runs it (its own `main`, its own Spark session),
+/// with `--no-examples`: the report keeps no value from the data.
+#[test]
+fn the_driver_runs_alone_and_leaves_data_values_out_on_request() {
+    let dir = tempfile::tempdir().unwrap();
+    let driver = write_plan(&demo("deliveries.parquet"), dir.path(), "deliveries");
+    let report = dir.path().join("deliveries.report.json");
+    let run = Command::new("python3")
+        .arg(&driver)
+        .args(["--master", "local[1]", "--no-examples", "--report"])
+        .arg(&report)
+        .output();
+    match run {
+        Ok(o) if o.status.success() => {}
+        Ok(o) if String::from_utf8_lossy(&o.stderr).contains("No module named 'pyspark'") => {
+            common::not_run::<()>("pyspark is not installed (`.ci/run` installs it)");
+            return;
+        }
+        other => panic!("the driver failed: {other:?}"),
+    }
+    let text = std::fs::read_to_string(&report).unwrap();
+    let value: serde_json::Value = serde_json::from_str(&text).unwrap();
+    assert_eq!(value["examples_included"], false);
+    for field in value["fields"].as_array().unwrap() {
+        for key in ["top", "min", "max", "earliest", "latest"] {
+            assert!(field.get(key).is_none(), "{} keeps {key}", field["path"]);
+        }
+    }
+    assert!(value["source"]["bytes"].as_u64().is_some_and(|b| b > 0), "the file system's size of the source");
+    let scan = plumbline::report::read::read(&report).unwrap();
+    assert_eq!(scan.shape.rows, 3000);
+}
