@@ -435,4 +435,10 @@ fn a_report_opens_like_its_source_and_rows_say_there_are_none_behind_it() {
     h.state_mut().as_mut().unwrap().state.area = plumbline::gui::state::Area::Rows;
     h.step();
     h.get_by_label_contains("is a report: it holds statistics, not rows");
+    // Fit judges the report's statistics and says so, never "every row".
+    click(&mut h, "Record types");
+    click(&mut h, "Check against every row");
+    wait_for_read(&mut h);
+    h.get_by_label_contains("Nothing in the report's statistics of its 3,000 rows fails to fit");
+    h.get_by_label_contains("Checked against a report's statistics, not its rows");
 }

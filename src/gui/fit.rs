@@ -152,7 +152,9 @@ fn mark(ui: &egui::Ui, severity: Severity) -> (egui::Color32, &'static str) {
 fn verdicts(ui: &mut egui::Ui, name: &str, lang: DefinitionLang, fit: &Fit, intents: &mut Vec<Intent>) {
     let failing = fit.verdicts.iter().filter(|v| v.severity == Severity::Fails).count();
     let rows = group_digits(fit.rows);
-    ui.heading(if failing == 0 {
+    ui.heading(if failing == 0 && fit.from_report {
+        format!("Nothing in the report's statistics of its {rows} rows fails to fit {name}.")
+    } else if failing == 0 {
         format!("Every one of the {rows} rows fits {name}.")
     } else {
         {
@@ -161,7 +163,13 @@ fn verdicts(ui: &mut egui::Ui, name: &str, lang: DefinitionLang, fit: &Fit, inte
     }
     });
     ui.weak(format!("Read as {}. {} verdict{} in all.", lang.label(), fit.verdicts.len(), if fit.verdicts.len() == 1 { "" } else { "s" }));
-    if fit.partial {
+    if fit.from_report {
+        // A report states counts, not rows: no row counts or rows to show.
+        ui.colored_label(
+            ui.visuals().warn_fg_color,
+            "Checked against a report's statistics, not its rows: a difference they cannot rule out counts as failing.",
+        );
+    } else if fit.partial {
         ui.colored_label(ui.visuals().warn_fg_color, "PARTIAL: the check was stopped; counts cover the rows read.");
     }
     let mut sorted: Vec<&Verdict> = fit.verdicts.iter().collect();
@@ -176,7 +184,7 @@ fn verdicts(ui: &mut egui::Ui, name: &str, lang: DefinitionLang, fit: &Fit, inte
                 }
                 ui.label(&v.message);
             });
-            if v.rows > 0 && v.severity != Severity::Note {
+            if v.rows > 0 && v.severity != Severity::Note && !fit.from_report {
                 ui.horizontal_wrapped(|ui| {
                     ui.add_space(24.0);
                     ui.weak(format!("{} of {} rows", group_digits(v.rows), group_digits(fit.rows)));
