@@ -30,7 +30,9 @@ pub fn sniff_delimiter(text: &[u8]) -> u8 {
     let mut best = (b',', 0usize, 0usize); // (delimiter, lines agreeing, count)
     for &d in &CANDIDATE_DELIMITERS {
         let counts: Vec<usize> = lines.iter().map(|l| count_outside_quotes(l, d)).collect();
-        let Some(&first) = counts.first() else { continue };
+        let Some(&first) = counts.first() else {
+            continue;
+        };
         if first == 0 {
             continue;
         }
@@ -126,7 +128,9 @@ fn is_decimal_number(s: &str) -> bool {
 /// later cells are mostly typed (numbers, bools) or no header cell repeated
 /// among its column's values.
 pub fn has_header(records: &[Vec<String>]) -> bool {
-    let Some(first) = records.first() else { return false };
+    let Some(first) = records.first() else {
+        return false;
+    };
     let rest = &records[1..];
     let distinct: std::collections::HashSet<&String> = first.iter().collect();
     if first.iter().any(|c| c.trim().is_empty()) || distinct.len() != first.len() {
@@ -151,11 +155,38 @@ pub struct CsvSource {
     info: SourceInfo,
     reader: csv::Reader<Box<dyn std::io::BufRead + Send>>,
     columns: Vec<String>,
+    delimiter: u8,
+    /// Where the first record after the header starts.
+    data_start: u64,
     file_bytes_read: Arc<AtomicU64>,
     record: csv::StringRecord,
     finished: bool,
     /// An error met after some rows of a batch: those rows go out first.
     pending_error: Option<SourceError>,
+    /// For one chunk of the file: where its bytes start, and the byte at
+    /// or after which a record belongs to the next chunk.
+    base: u64,
+    range_end: Option<u64>,
+    /// Where the record after the last one read starts (chunks only).
+    next_record: Option<u64>,
+}
+
+/// What every chunk of one delimited file shares: its format, delimiter
+/// and column names (the header is read once, by the whole-file reader).
+#[derive(Debug, Clone)]
+pub struct CsvLayout {
+    pub format: Format,
+    pub delimiter: u8,
+    pub columns: Vec<String>,
+}
+
+fn csv_reader(
+    reader: Box<dyn std::io::BufRead + Send>,
+    delimiter: u8,
+) -> csv::Reader<Box<dyn std::io::BufRead + Send>> {
+    // Flexible: record lengths are checked against the columns here, so a
+    // chunk checks them as the whole file would.
+    csv::ReaderBuilder::new().delimiter(delimiter).has_headers(false).flexible(true).from_reader(reader)
 }
 
 impl CsvSource {
@@ -167,17 +198,15 @@ impl CsvSource {
         let header = has_header(&sample_records);
 
         let opened = open_decompressed(path, compression)?;
-        let mut reader = csv::ReaderBuilder::new()
-            .delimiter(delimiter)
-            .has_headers(false)
-            .flexible(false)
-            .from_reader(opened.reader);
+        let mut reader = csv_reader(opened.reader, delimiter);
         let mut record = csv::StringRecord::new();
         let mut columns: Vec<String> = Vec::new();
+        let mut data_start = 0;
         if header {
             let got = reader.read_record(&mut record).map_err(|e| csv_error(path, format, e))?;
             if got {
                 columns = dedupe_names(record.iter().map(|s| s.trim_start_matches('\u{feff}').to_string()).collect());
+                data_start = reader.position().byte();
             }
         } else if let Some(first) = sample_records.first() {
             columns = (1..=first.len()).map(|i| format!("column_{i}")).collect();
@@ -196,7 +225,60 @@ impl CsvSource {
                 ..Facts::default()
             },
         };
-        Ok(CsvSource { info, reader, columns, file_bytes_read: opened.file_bytes_read, record, finished: false, pending_error: None })
+        Ok(CsvSource {
+            info,
+            reader,
+            columns,
+            delimiter,
+            data_start,
+            file_bytes_read: opened.file_bytes_read,
+            record,
+            finished: false,
+            pending_error: None,
+            base: 0,
+            range_end: None,
+            next_record: None,
+        })
+    }
+
+    /// The records of `path` starting from byte `start` (a line start)
+    /// before byte `end`, as one chunk (see [`crate::source::chunks`]).
+    /// The last record may run past `end`; the first one starting at or
+    /// after it belongs to the next chunk.
+    pub fn open_range(path: &Path, layout: Arc<CsvLayout>, start: u64, end: u64) -> Result<Self, SourceError> {
+        let reader = csv_reader(super::chunks::range_reader(path, start, None)?, layout.delimiter);
+        let info = SourceInfo {
+            path: path.to_path_buf(),
+            format: layout.format,
+            compression: Compression::None,
+            bytes: end - start,
+            parts: 1,
+            rows: None,
+            schema: None,
+            parquet_leaves: None,
+            facts: Facts::default(),
+        };
+        Ok(CsvSource {
+            info,
+            reader,
+            columns: layout.columns.clone(),
+            delimiter: layout.delimiter,
+            data_start: 0,
+            file_bytes_read: Arc::new(AtomicU64::new(0)),
+            record: csv::StringRecord::new(),
+            finished: false,
+            pending_error: None,
+            base: start,
+            range_end: Some(end),
+            next_record: None,
+        })
+    }
+
+    /// The file in chunks of about `target` bytes (tests use small ones).
+    pub(crate) fn split_every(&mut self, target: u64) -> Option<Vec<Box<dyn Source>>> {
+        let layout = CsvLayout { format: self.info.format, delimiter: self.delimiter, columns: self.columns.clone() };
+        let format = super::chunks::ChunkFormat::Delimited(Arc::new(layout));
+        super::chunks::TextChunk::split(&self.info, format, self.data_start, target)
     }
 }
 
@@ -238,7 +320,8 @@ fn read_sample(path: &Path, compression: Compression) -> Result<Vec<u8>, SourceE
 }
 
 fn parse_sample(sample: &[u8], delimiter: u8) -> Vec<Vec<String>> {
-    let mut reader = csv::ReaderBuilder::new().delimiter(delimiter).has_headers(false).flexible(true).from_reader(sample);
+    let mut reader =
+        csv::ReaderBuilder::new().delimiter(delimiter).has_headers(false).flexible(true).from_reader(sample);
     reader
         .records()
         .take(HEADER_SAMPLE_RECORDS)
@@ -268,9 +351,33 @@ fn csv_error(path: &Path, format: Format, e: csv::Error) -> SourceError {
     }
 }
 
+impl super::chunks::ChunkReader for CsvSource {
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        Source::next_batch(self)
+    }
+
+    fn next_record(&self) -> Option<u64> {
+        self.next_record
+    }
+}
+
 impl Source for CsvSource {
     fn info(&self) -> &SourceInfo {
         &self.info
+    }
+
+    /// An uncompressed file of at least two chunks with a known column
+    /// count, in chunks read in parallel.
+    fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
+        let untouched = self.reader.position().byte() == self.data_start && !self.finished;
+        let whole_file = self.range_end.is_none();
+        if self.info.compression != Compression::None || !untouched || !whole_file || self.columns.is_empty() {
+            return None;
+        }
+        if self.info.bytes < 2 * super::chunks::CHUNK_BYTES {
+            return None;
+        }
+        self.split_every(super::chunks::CHUNK_BYTES)
     }
 
     fn progress(&self) -> Progress {
@@ -311,16 +418,28 @@ impl Source for CsvSource {
 
 impl CsvSource {
     fn read_row(&mut self) -> Result<Option<Value>, SourceError> {
-        let got = self.reader.read_record(&mut self.record).map_err(|e| csv_error(&self.info.path, self.info.format, e))?;
+        let got =
+            self.reader.read_record(&mut self.record).map_err(|e| csv_error(&self.info.path, self.info.format, e))?;
         if !got {
+            self.next_record = Some(self.base + self.reader.position().byte());
             return Ok(None);
         }
-        if self.record.as_slice().len() > MAX_RECORD_BYTES {
-            let position = self.record.position().map_or(Position::File, |p| Position::Text {
+        let starts_at = self.record.position().map_or(0, |p| p.byte());
+        if let Some(end) = self.range_end
+            && self.base + starts_at >= end
+        {
+            self.next_record = Some(self.base + starts_at);
+            return Ok(None);
+        }
+        let position = || {
+            self.record.position().map_or(Position::File, |p| Position::Text {
                 line: p.line(),
                 column: 1,
                 byte: p.byte(),
-            });
+            })
+        };
+        if self.record.as_slice().len() > MAX_RECORD_BYTES {
+            let position = position();
             return Err(SourceError::Limit {
                 path: self.info.path.clone(),
                 position,
@@ -329,6 +448,11 @@ impl CsvSource {
         }
         if self.columns.is_empty() {
             self.columns = (1..=self.record.len()).map(|i| format!("column_{i}")).collect();
+        }
+        if self.record.len() != self.columns.len() {
+            let message =
+                format!("expected {} fields like the first record, found {}", self.columns.len(), self.record.len());
+            return Err(SourceError::malformed(&self.info.path, self.info.format, position(), message));
         }
         let row = self.columns.iter().zip(self.record.iter()).map(|(name, cell)| (name.clone(), type_cell(cell)));
         Ok(Some(Value::Object(row.collect())))

@@ -14,13 +14,16 @@ use arrow_array::{ArrayRef, Int64Array, RecordBatch, StringArray};
 use arrow_schema::{DataType, Field, Schema, SchemaRef};
 
 use super::error::SourceError;
+use super::lazy::LazyPart;
 use super::{Batch, Format, OpenOptions, Progress, Source, SourceInfo, detect, open_file};
 use crate::value::Value;
 
 const NULL_PARTITION: &str = "__HIVE_DEFAULT_PARTITION__";
 
+#[derive(Debug, Clone)]
 struct Part {
     path: PathBuf,
+    bytes: u64,
     /// `key=value` segments between the directory and the file.
     partitions: Vec<(String, Option<String>)>,
 }
@@ -35,7 +38,7 @@ struct PartitionField {
 pub struct DirSource {
     info: SourceInfo,
     parts: Vec<Part>,
-    partition_fields: Vec<PartitionField>,
+    partition_fields: Arc<Vec<PartitionField>>,
     options: OpenOptions,
     next_part: usize,
     current: Option<Box<dyn Source>>,
@@ -75,7 +78,8 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
             }
             Some(_) => {}
         }
-        bytes += std::fs::metadata(&file).map_err(|e| SourceError::io(&file, e))?.len();
+        let file_bytes = std::fs::metadata(&file).map_err(|e| SourceError::io(&file, e))?.len();
+        bytes += file_bytes;
         if !detected.format.is_text() {
             let source = open_file(&file, options)?;
             if parquet_leaves.is_none() {
@@ -86,7 +90,7 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
             schemas.push((file.clone(), None, None));
         }
         let partitions = partition_segments(dir, &file);
-        parts.push(Part { path: file, partitions });
+        parts.push(Part { path: file, bytes: file_bytes, partitions });
     }
     let (format, _) = format.expect("at least one part");
     let partition_fields = partition_fields(&parts);
@@ -110,6 +114,7 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
         parquet_leaves,
         facts,
     };
+    let partition_fields = Arc::new(partition_fields);
     Ok(Box::new(DirSource { info, parts, partition_fields, options, next_part: 0, current: None, bytes_done: 0 }))
 }
 
@@ -210,7 +215,9 @@ fn with_partition_fields(schema: &Schema, fields: &[PartitionField]) -> SchemaRe
 }
 
 fn schema_differences(dir: &Path, schemas: &[(PathBuf, Option<SchemaRef>, Option<u64>)]) -> Vec<String> {
-    let Some((first_path, Some(first), _)) = schemas.first() else { return Vec::new() };
+    let Some((first_path, Some(first), _)) = schemas.first() else {
+        return Vec::new();
+    };
     let first_name = relative(dir, first_path);
     let mut out = Vec::new();
     for (path, schema, _) in &schemas[1..] {
@@ -247,64 +254,89 @@ fn nullability(nullable: bool) -> &'static str {
     if nullable { "nullable" } else { "not nullable" }
 }
 
-impl DirSource {
-    fn add_partitions(&self, part: &Part, batch: Batch) -> Result<Batch, SourceError> {
-        if part.partitions.is_empty() {
-            return Ok(batch);
+/// Adds the partition fields of `part` to every row of `batch`.
+fn add_partitions(partition_fields: &[PartitionField], part: &Part, batch: Batch) -> Result<Batch, SourceError> {
+    if part.partitions.is_empty() {
+        return Ok(batch);
+    }
+    let value_of =
+        |field: &PartitionField| part.partitions.iter().find(|(k, _)| *k == field.name).and_then(|(_, v)| v.clone());
+    let partition_values: Vec<(String, Value)> = partition_fields
+        .iter()
+        .map(|field| {
+            let value = match value_of(field) {
+                None => Value::Null,
+                Some(v) if field.integer => v.parse().map(Value::Int).unwrap_or(Value::Str(v)),
+                Some(v) => Value::Str(v),
+            };
+            (field.name.clone(), value)
+        })
+        .collect();
+    match batch {
+        Batch::Json(mut records) => {
+            records.add_members(partition_values);
+            Ok(Batch::Json(records))
         }
-        let value_of = |field: &PartitionField| part.partitions.iter().find(|(k, _)| *k == field.name).and_then(|(_, v)| v.clone());
-        let partition_values: Vec<(String, Value)> = self
-            .partition_fields
-            .iter()
-            .map(|field| {
-                let value = match value_of(field) {
-                    None => Value::Null,
-                    Some(v) if field.integer => v.parse().map(Value::Int).unwrap_or(Value::Str(v)),
-                    Some(v) => Value::Str(v),
+        Batch::Rows(mut rows) => {
+            for row in &mut rows {
+                let Value::Object(members) = row else {
+                    continue;
                 };
-                (field.name.clone(), value)
+                for (name, value) in &partition_values {
+                    if !members.iter().any(|(k, _)| k == name) {
+                        members.push((name.clone(), value.clone()));
+                    }
+                }
+            }
+            Ok(Batch::Rows(rows))
+        }
+        Batch::Arrow(batch) => {
+            let n = batch.num_rows();
+            let mut fields: Vec<Field> = batch.schema().fields().iter().map(|f| f.as_ref().clone()).collect();
+            let mut columns: Vec<ArrayRef> = batch.columns().to_vec();
+            for field in partition_fields {
+                if batch.schema().field_with_name(&field.name).is_ok() {
+                    continue;
+                }
+                let value = value_of(field);
+                let column: ArrayRef = if field.integer {
+                    let v = value.and_then(|v| v.parse::<i64>().ok());
+                    Arc::new(Int64Array::from(vec![v; n]))
+                } else {
+                    Arc::new(StringArray::from(vec![value; n]))
+                };
+                fields.push(Field::new(&field.name, partition_type(field), true));
+                columns.push(column);
+            }
+            let schema = Arc::new(Schema::new_with_metadata(fields, batch.schema().metadata().clone()));
+            RecordBatch::try_new(schema, columns).map(Batch::Arrow).map_err(|e| SourceError::Directory {
+                path: part.path.clone(),
+                message: format!("cannot add partition fields: {e}"),
             })
-            .collect();
-        match batch {
-            Batch::Json(mut records) => {
-                records.add_members(partition_values);
-                Ok(Batch::Json(records))
-            }
-            Batch::Rows(mut rows) => {
-                for row in &mut rows {
-                    let Value::Object(members) = row else { continue };
-                    for (name, value) in &partition_values {
-                        if !members.iter().any(|(k, _)| k == name) {
-                            members.push((name.clone(), value.clone()));
-                        }
-                    }
-                }
-                Ok(Batch::Rows(rows))
-            }
-            Batch::Arrow(batch) => {
-                let n = batch.num_rows();
-                let mut fields: Vec<Field> = batch.schema().fields().iter().map(|f| f.as_ref().clone()).collect();
-                let mut columns: Vec<ArrayRef> = batch.columns().to_vec();
-                for field in &self.partition_fields {
-                    if batch.schema().field_with_name(&field.name).is_ok() {
-                        continue;
-                    }
-                    let value = value_of(field);
-                    let column: ArrayRef = if field.integer {
-                        let v = value.and_then(|v| v.parse::<i64>().ok());
-                        Arc::new(Int64Array::from(vec![v; n]))
-                    } else {
-                        Arc::new(StringArray::from(vec![value; n]))
-                    };
-                    fields.push(Field::new(&field.name, partition_type(field), true));
-                    columns.push(column);
-                }
-                let schema = Arc::new(Schema::new_with_metadata(fields, batch.schema().metadata().clone()));
-                RecordBatch::try_new(schema, columns).map(Batch::Arrow).map_err(|e| SourceError::Directory {
-                    path: part.path.clone(),
-                    message: format!("cannot add partition fields: {e}"),
-                })
-            }
+        }
+    }
+}
+
+/// One part file read on its own, with its partition fields.
+struct PartSource {
+    inner: Box<dyn Source>,
+    part: Part,
+    partition_fields: Arc<Vec<PartitionField>>,
+}
+
+impl Source for PartSource {
+    fn info(&self) -> &SourceInfo {
+        self.inner.info()
+    }
+
+    fn progress(&self) -> Progress {
+        self.inner.progress()
+    }
+
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        match self.inner.next_batch()? {
+            Some(batch) => add_partitions(&self.partition_fields, &self.part, batch).map(Some),
+            None => Ok(None),
         }
     }
 }
@@ -322,6 +354,22 @@ impl Source for DirSource {
         Progress { done: self.bytes_done + current, total: self.info.bytes }
     }
 
+    /// One part per file, read in parallel, each opened only when read.
+    fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
+        if self.next_part != 0 || self.current.is_some() || self.parts.len() < 2 {
+            return None;
+        }
+        let parts = self.parts.iter().map(|part| {
+            let info = SourceInfo { path: part.path.clone(), bytes: part.bytes, parts: 1, ..self.info.clone() };
+            let (part, partition_fields, options) = (part.clone(), self.partition_fields.clone(), self.options);
+            Box::new(LazyPart::new(info, move || {
+                let inner = open_file(&part.path, options)?;
+                Ok(Box::new(PartSource { inner, part, partition_fields }) as Box<dyn Source>)
+            })) as Box<dyn Source>
+        });
+        Some(parts.collect())
+    }
+
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
         loop {
             if self.current.is_none() {
@@ -335,7 +383,7 @@ impl Source for DirSource {
             match current.next_batch()? {
                 Some(batch) => {
                     let part = &self.parts[self.next_part];
-                    return self.add_partitions(part, batch).map(Some);
+                    return add_partitions(&self.partition_fields, part, batch).map(Some);
                 }
                 None => {
                     self.bytes_done += current.info().bytes;

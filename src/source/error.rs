@@ -47,19 +47,10 @@ pub enum SourceError {
     },
     /// The bytes do not follow the format's rules.
     #[error("{}{}: {message}", path.display(), at(position))]
-    Malformed {
-        path: PathBuf,
-        format: Format,
-        position: Position,
-        message: String,
-    },
+    Malformed { path: PathBuf, format: Format, position: Position, message: String },
     /// The user forced a format the file is not in.
     #[error("{}: not {} data: {reason}", path.display(), expected.label())]
-    WrongFormat {
-        path: PathBuf,
-        expected: Format,
-        reason: String,
-    },
+    WrongFormat { path: PathBuf, expected: Format, reason: String },
     #[error("{}: cannot tell the format: {reason} (use --format to say which)", path.display())]
     UnknownFormat { path: PathBuf, reason: String },
     #[error("{}: the file is encrypted (Parquet modular encryption); Plumbline cannot read encrypted files", path.display())]
@@ -67,11 +58,7 @@ pub enum SourceError {
     #[error("{}: the file is empty (0 bytes)", path.display())]
     Empty { path: PathBuf },
     #[error("{}{}: {message}", path.display(), at(position))]
-    Limit {
-        path: PathBuf,
-        position: Position,
-        message: String,
-    },
+    Limit { path: PathBuf, position: Position, message: String },
     #[error("{}: {message}", path.display())]
     Directory { path: PathBuf, message: String },
     /// A Plumbline report that cannot be read back.
@@ -89,6 +76,22 @@ impl SourceError {
 
     pub fn malformed(path: &Path, format: Format, position: Position, message: impl Into<String>) -> Self {
         SourceError::Malformed { path: path.to_path_buf(), format, position, message: message.into() }
+    }
+
+    /// The same error for a reader that started `lines` line breaks and
+    /// `bytes` bytes into the file, placed in the whole file.
+    pub fn shifted(mut self, lines: u64, bytes: u64) -> Self {
+        if let SourceError::Malformed { position, .. } | SourceError::Limit { position, .. } = &mut self {
+            match position {
+                Position::Text { line, byte, .. } => {
+                    *line += lines;
+                    *byte += bytes;
+                }
+                Position::Byte(byte) => *byte += bytes,
+                _ => {}
+            }
+        }
+        self
     }
 
     /// The file this error is about.
@@ -139,6 +142,19 @@ mod tests {
         assert_eq!(e.to_string(), "x.jsonl: line 3, column 7 (byte 40): expected ':'");
         let e = SourceError::Empty { path: "e.csv".into() };
         assert_eq!(e.to_string(), "e.csv: the file is empty (0 bytes)");
+    }
+
+    #[test]
+    fn shifted_errors_count_from_the_file() {
+        let e = SourceError::malformed(
+            Path::new("x.csv"),
+            Format::Csv,
+            Position::Text { line: 2, column: 1, byte: 9 },
+            "bad",
+        );
+        assert_eq!(e.shifted(10, 100).to_string(), "x.csv: line 12, column 1 (byte 109): bad");
+        let e = SourceError::Empty { path: "e.csv".into() };
+        assert_eq!(e.shifted(10, 100).to_string(), "e.csv: the file is empty (0 bytes)");
     }
 
     #[test]

@@ -6,6 +6,7 @@
 //! about the file read from metadata alone, and batches of rows. Nothing here
 //! knows about shapes or profiles.
 
+pub mod chunks;
 pub mod csv;
 pub mod decompress;
 pub mod detect;
@@ -16,6 +17,7 @@ pub mod guard;
 pub mod ipc;
 pub mod ipc_big_endian;
 pub mod json;
+pub mod lazy;
 pub mod limits;
 pub mod parquet;
 
@@ -98,6 +100,30 @@ pub trait Source: Send {
     fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
         None
     }
+    /// For a part cut at a guessed record boundary (a CSV chunk): where it
+    /// starts, and once read, where the record after its last one starts.
+    fn seam(&self) -> Option<Seam> {
+        None
+    }
+    /// This part read again from `byte`, when the part before it showed
+    /// that its guessed start fell inside a record.
+    fn reread_from(&self, _byte: u64) -> Option<Box<dyn Source>> {
+        None
+    }
+    /// An error its consumer found in this part's rows (JSON is parsed
+    /// after it is cut), placed in the whole file rather than the part.
+    fn place_error(&self, e: SourceError) -> SourceError {
+        e
+    }
+}
+
+/// Where a part of a split text file begins and where its reading ended
+/// (see [`chunks`]): a part is valid when it begins where the part before
+/// it ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Seam {
+    pub start: u64,
+    pub next_record: Option<u64>,
 }
 
 /// Options for opening a source.
@@ -126,6 +152,8 @@ pub fn open_file(path: &Path, options: OpenOptions) -> Result<Box<dyn Source>, S
         Format::Json | Format::JsonLines => {
             Box::new(json::JsonSource::open(path, detected.format, detected.compression, bytes)?)
         }
-        Format::Csv | Format::Tsv => Box::new(csv::CsvSource::open(path, detected.format, detected.compression, bytes)?),
+        Format::Csv | Format::Tsv => {
+            Box::new(csv::CsvSource::open(path, detected.format, detected.compression, bytes)?)
+        }
     })
 }

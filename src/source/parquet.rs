@@ -20,6 +20,7 @@ use parquet::schema::types::Type;
 use super::error::{Position, SourceError};
 use super::facts::{ColumnFacts, shorten_metadata_value};
 use super::guard;
+use super::lazy::LazyPart;
 use super::{ARROW_BATCH_ROWS, Batch, Compression, Facts, Format, Progress, Source, SourceInfo};
 use crate::path;
 
@@ -261,7 +262,9 @@ fn logical_name(l: &LogicalType) -> String {
         LogicalType::Timestamp(t) => {
             format!("TIMESTAMP({}, adjusted_to_utc={})", unit(&t.unit), t.is_adjusted_to_u_t_c)
         }
-        LogicalType::Integer(i) => format!("INTEGER({}, {})", i.bit_width, if i.is_signed { "signed" } else { "unsigned" }),
+        LogicalType::Integer(i) => {
+            format!("INTEGER({}, {})", i.bit_width, if i.is_signed { "signed" } else { "unsigned" })
+        }
         LogicalType::Json => "JSON".into(),
         LogicalType::Bson => "BSON".into(),
         LogicalType::Uuid => "UUID".into(),
@@ -349,20 +352,26 @@ impl Source for ParquetSource {
         }
         let mut parts: Vec<Box<dyn Source>> = Vec::with_capacity(self.end_group);
         for group in 0..self.end_group {
-            // A file of its own: a cloned handle would share the read offset
-            // with the other parts' threads.
-            let file = File::open(&self.info.path).ok()?;
-            parts.push(Box::new(ParquetSource {
-                info: self.info.clone(),
-                file,
-                metadata: self.metadata.clone(),
-                next_group: group,
-                end_group: group + 1,
-                current: None,
-                rows_done: 0,
-                failed: false,
-                encrypted_columns: self.encrypted_columns,
-            }));
+            let (info, metadata, encrypted_columns) =
+                (self.info.clone(), self.metadata.clone(), self.encrypted_columns);
+            let path = self.info.path.clone();
+            // A file of its own, opened when read: a cloned handle would
+            // share the read offset with the other parts' threads, and a
+            // file of thousands of row groups must not open thousands.
+            parts.push(Box::new(LazyPart::new(self.info.clone(), move || {
+                let file = File::open(&path).map_err(|e| SourceError::io(&path, e))?;
+                Ok(Box::new(ParquetSource {
+                    info,
+                    file,
+                    metadata,
+                    next_group: group,
+                    end_group: group + 1,
+                    current: None,
+                    rows_done: 0,
+                    failed: false,
+                    encrypted_columns,
+                }) as Box<dyn Source>)
+            })));
         }
         Some(parts)
     }

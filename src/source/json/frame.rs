@@ -73,6 +73,12 @@ impl<R: BufRead> LineFramer<R> {
         LineFramer { reader, cursor: Cursor::new() }
     }
 
+    /// A framer over a stream that begins `byte` bytes into the file, at a
+    /// line start; lines count from 1 there (the chunk places them later).
+    pub fn starting_at(reader: R, byte: u64) -> Self {
+        LineFramer { reader, cursor: Cursor { byte, line: 1, line_start: byte } }
+    }
+
     /// Fills `buf` with the next non-blank line (without its line ending).
     pub fn next_record(&mut self, buf: &mut Vec<u8>) -> Result<Option<Start>, FrameError> {
         buf.clear();
@@ -194,7 +200,10 @@ impl<R: BufRead> ArrayFramer<R> {
                 self.skip_bom()?;
                 self.skip_ws()?;
                 if self.peek()? != Some(b'[') {
-                    return Err(FrameError::Syntax("expected '[' to open the top-level array".into(), self.cursor.start()));
+                    return Err(FrameError::Syntax(
+                        "expected '[' to open the top-level array".into(),
+                        self.cursor.start(),
+                    ));
                 }
                 self.bump();
                 self.skip_ws()?;
@@ -285,10 +294,9 @@ impl<R: BufRead> ArrayFramer<R> {
         self.skip_ws()?;
         match self.peek()? {
             None => Ok(()),
-            Some(_) => Err(FrameError::Syntax(
-                "unexpected characters after the top-level array".into(),
-                self.cursor.start(),
-            )),
+            Some(_) => {
+                Err(FrameError::Syntax("unexpected characters after the top-level array".into(), self.cursor.start()))
+            }
         }
     }
 }

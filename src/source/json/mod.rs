@@ -43,6 +43,8 @@ pub struct JsonSource {
     finished: bool,
     /// An error met after some rows of a batch: those rows go out first.
     pending_error: Option<SourceError>,
+    /// Where this reader stops, when it reads one chunk of the file.
+    range_end: Option<u64>,
 }
 
 impl JsonSource {
@@ -70,7 +72,41 @@ impl JsonSource {
             parquet_leaves: None,
             facts: Facts::default(),
         };
-        Ok(JsonSource { info, framer, file_bytes_read: opened.file_bytes_read, shared_path: Arc::new(path.to_path_buf()), finished: false, pending_error: None })
+        Ok(JsonSource {
+            info,
+            framer,
+            file_bytes_read: opened.file_bytes_read,
+            shared_path: Arc::new(path.to_path_buf()),
+            finished: false,
+            pending_error: None,
+            range_end: None,
+        })
+    }
+
+    /// The lines of `path` from byte `start` (a line start) to `end`, as
+    /// one chunk of a JSON Lines file (see [`crate::source::chunks`]).
+    pub fn open_lines_range(path: &Path, start: u64, end: u64) -> Result<Self, SourceError> {
+        let reader = super::chunks::range_reader(path, start, Some(end - start))?;
+        let info = SourceInfo {
+            path: path.to_path_buf(),
+            format: Format::JsonLines,
+            compression: Compression::None,
+            bytes: end - start,
+            parts: 1,
+            rows: None,
+            schema: None,
+            parquet_leaves: None,
+            facts: Facts::default(),
+        };
+        Ok(JsonSource {
+            info,
+            framer: Framer::Lines(LineFramer::starting_at(reader, start)),
+            file_bytes_read: Arc::new(AtomicU64::new(0)),
+            shared_path: Arc::new(path.to_path_buf()),
+            finished: false,
+            pending_error: None,
+            range_end: Some(end),
+        })
     }
 
     fn path(&self) -> PathBuf {
@@ -127,6 +163,13 @@ pub fn as_row(value: Value) -> Value {
     }
 }
 
+impl JsonSource {
+    /// The file in chunks of about `target` bytes (tests use small ones).
+    pub(crate) fn split_every(&mut self, target: u64) -> Option<Vec<Box<dyn Source>>> {
+        super::chunks::TextChunk::split(&self.info, super::chunks::ChunkFormat::JsonLines, 0, target)
+    }
+}
+
 fn text_position(at: Start) -> Position {
     Position::Text { line: at.line, column: at.column, byte: at.byte }
 }
@@ -138,9 +181,38 @@ fn first_significant_byte(reader: &mut Box<dyn BufRead + Send>, path: &Path) -> 
     Ok(chunk.iter().copied().find(|&b| !parse::is_json_ws(b)))
 }
 
+impl super::chunks::ChunkReader for JsonSource {
+    fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
+        Source::next_batch(self)
+    }
+
+    /// A JSON Lines chunk ends at a line start, where the next one begins.
+    fn next_record(&self) -> Option<u64> {
+        self.range_end
+    }
+}
+
 impl Source for JsonSource {
     fn info(&self) -> &SourceInfo {
         &self.info
+    }
+
+    /// An uncompressed JSON Lines file of at least two chunks, in chunks
+    /// read in parallel (a line break never sits inside a JSON record).
+    fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
+        let untouched = self.file_bytes_read.load(Ordering::Relaxed) == 0 && !self.finished;
+        let whole_file = self.range_end.is_none();
+        if self.info.format != Format::JsonLines
+            || self.info.compression != Compression::None
+            || !untouched
+            || !whole_file
+        {
+            return None;
+        }
+        if self.info.bytes < 2 * super::chunks::CHUNK_BYTES {
+            return None;
+        }
+        self.split_every(super::chunks::CHUNK_BYTES)
     }
 
     fn progress(&self) -> Progress {
@@ -156,7 +228,9 @@ impl Source for JsonSource {
         }
         if let Framer::Single(reader) = &mut self.framer {
             self.finished = true;
-            let Some(reader) = reader.take() else { return Ok(None) };
+            let Some(reader) = reader.take() else {
+                return Ok(None);
+            };
             let row = self.read_single(reader)?;
             return Ok(Some(Batch::Rows(vec![row])));
         }
