@@ -570,3 +570,27 @@ fn html_reports_are_written_once_and_replaced_only_with_force() {
     assert!(page.contains("<h2>Compared with the earlier source</h2>"));
     assert!(page.contains("▲ drifted"));
 }
+
+#[test]
+fn a_first_look_profiles_the_first_rows_and_the_report_and_types_say_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let data = dir.path().join("long.jsonl");
+    let text: String = (0..30_000).map(|i| format!("{{\"id\":{i},\"code\":\"c{}\"}}\n", i % 9)).collect();
+    std::fs::write(&data, text).unwrap();
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", data.to_str().unwrap(), "--first-look", "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    let r = read_json(&report);
+    assert_eq!((r["partial"].as_bool(), r["shape_only"].as_bool()), (Some(true), Some(false)));
+    assert_eq!(r["source"]["rows"], 10_000);
+    assert!(r["coverage_note"].as_str().unwrap().starts_with("a first look: the first 10,000 rows"), "{r}");
+    let id = r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "id").unwrap();
+    assert_eq!(id["max"].as_f64(), Some(9_999.0), "statistics of the rows read");
+
+    let o = plumbline(&["types", data.to_str().unwrap(), "--lang", "rust", "--first-look"]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stdout(&o).contains("PARTIAL: a first look: the first 10,000 rows"), "{}", stdout(&o));
+
+    let o = plumbline(&["profile", data.to_str().unwrap(), "--first-look", "--sample", "5"]);
+    assert_eq!(o.status.code(), Some(2), "a first look is not a sample");
+}

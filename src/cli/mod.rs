@@ -173,6 +173,9 @@ pub struct TypesArgs {
     /// Seed of the sample.
     #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
     pub seed: u64,
+    /// Derive the types from the first rows only (the header says so).
+    #[arg(long, conflicts_with = "sample")]
+    pub first_look: bool,
 }
 
 #[derive(Debug, clap::Args)]
@@ -206,6 +209,11 @@ pub struct ProfileArgs {
     /// Seed of the sample, so a rerun draws the same rows.
     #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
     pub seed: u64,
+    /// Profile only the first rows (at most 10,000; fewer for wide
+    /// files): the footer and the start of the first row group, or the
+    /// first lines. Answers within a second on any size; says it is partial.
+    #[arg(long, conflicts_with_all = ["shape_only", "sample"])]
+    pub first_look: bool,
 }
 
 pub fn main() -> ExitCode {
@@ -231,7 +239,7 @@ fn fail(message: &dyn std::fmt::Display) -> ExitCode {
 fn run_profile(args: &ProfileArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
     let sample = args.sample.map(|rows| SampleOptions { rows: rows.min(usize::MAX as u64) as usize, seed: args.seed });
-    let options = ScanOptions { shape_only: args.shape_only, sample, ..Default::default() };
+    let options = ScanOptions { shape_only: args.shape_only, sample, first_look: args.first_look, ..Default::default() };
     let stop = AtomicBool::new(false);
     // Drawn only when stderr is a terminal (indicatif checks).
     let bar = indicatif::ProgressBar::with_draw_target(None, indicatif::ProgressDrawTarget::stderr());
@@ -272,7 +280,7 @@ fn run_profile(args: &ProfileArgs) -> ExitCode {
 fn run_types(args: &TypesArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
     let sample = args.sample.map(|rows| SampleOptions { rows: rows as usize, seed: args.seed });
-    let options = ScanOptions { sample, skip_statistics: true, ..Default::default() };
+    let options = ScanOptions { sample, skip_statistics: true, first_look: args.first_look, ..Default::default() };
     let stop = AtomicBool::new(false);
     let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
         Ok(s) => s,

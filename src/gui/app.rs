@@ -150,7 +150,7 @@ impl PlumblineApp {
                 let ctx = self.ctx.clone();
                 self.state.compare_reading = Some(Reading { path: path.clone(), progress: Default::default() });
                 self.state.area = Area::Compare;
-                self.compare_job = Some(ScanJob::start(path, move || ctx.request_repaint()));
+                self.compare_job = Some(ScanJob::start(path, false, move || ctx.request_repaint()));
             }
             Intent::Open(path) => {
                 if let Some(job) = self.job.take() {
@@ -161,7 +161,7 @@ impl PlumblineApp {
                 let ctx = self.ctx.clone();
                 self.state.reading = Some(Reading { path: path.clone(), progress: Default::default() });
                 self.state.message = None;
-                self.job = Some(ScanJob::start(path, move || ctx.request_repaint()));
+                self.job = Some(ScanJob::start(path, true, move || ctx.request_repaint()));
             }
             Intent::StopReading => {
                 if let Some(job) = &self.job {
@@ -235,8 +235,14 @@ impl PlumblineApp {
             }
         }
         self.poll_compare();
-        let Some(result) = poll_job(&mut self.job, &mut self.state.reading) else { return };
+        let polled = poll_job(&mut self.job, &mut self.state.reading);
+        if let Some(first) = polled.first_look {
+            self.state.show_scan(first);
+        }
+        let Some(result) = polled.finished else { return };
         match result {
+            // Stopped before passing the first look: the first look says more.
+            Ok(scan) if self.state.first_look_says_more(&scan) => {}
             Ok(scan) => {
                 if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
                     self.state.message = Some(error.clone());
@@ -251,7 +257,7 @@ impl PlumblineApp {
     }
 
     fn poll_compare(&mut self) {
-        let Some(result) = poll_job(&mut self.compare_job, &mut self.state.compare_reading) else { return };
+        let Some(result) = poll_job(&mut self.compare_job, &mut self.state.compare_reading).finished else { return };
         match (result, &self.state.scan) {
             (Ok(scan), Some(open)) => {
                 if let crate::scan::Coverage::Broken { error, .. } = &scan.coverage {
@@ -314,8 +320,15 @@ enum Chosen {
 
 /// Takes a job's messages: progress into `reading`; the result once it
 /// finished (the job and `reading` are then cleared).
-fn poll_job(job: &mut Option<ScanJob>, reading: &mut Option<Reading>) -> Option<Result<Box<crate::scan::Scan>, String>> {
-    let mut finished = None;
+/// What a job said since the last frame.
+#[derive(Default)]
+struct Polled {
+    first_look: Option<Box<crate::scan::Scan>>,
+    finished: Option<Result<Box<crate::scan::Scan>, String>>,
+}
+
+fn poll_job(job: &mut Option<ScanJob>, reading: &mut Option<Reading>) -> Polled {
+    let mut polled = Polled::default();
     while let Some(message) = job.as_ref().and_then(|j| j.messages.try_recv().ok()) {
         match message {
             JobMessage::Progress(p) => {
@@ -323,14 +336,15 @@ fn poll_job(job: &mut Option<ScanJob>, reading: &mut Option<Reading>) -> Option<
                     r.progress = p;
                 }
             }
-            JobMessage::Finished(result) => finished = Some(result),
+            JobMessage::FirstLook(scan) => polled.first_look = Some(scan),
+            JobMessage::Finished(result) => polled.finished = Some(result),
         }
     }
-    if finished.is_some() {
+    if polled.finished.is_some() {
         *job = None;
         *reading = None;
     }
-    finished
+    polled
 }
 
 impl eframe::App for PlumblineApp {

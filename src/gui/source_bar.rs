@@ -60,6 +60,12 @@ impl SourceBar {
                 if ui.button("Stop").clicked() {
                     intents.push(Intent::StopReading);
                 }
+                if let Some(scan) = &state.scan
+                    && let crate::scan::Coverage::FirstLook(rows) = scan.coverage
+                    && scan.info.path == reading.path
+                {
+                    ui.label(format!("· showing a first look at the first {} rows until every row is read", group_digits(rows)));
+                }
             } else if let Some(scan) = &state.scan {
                 let info = &scan.info;
                 ui.strong(info.path.display().to_string());

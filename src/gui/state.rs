@@ -5,7 +5,7 @@ use std::collections::HashMap;
 use std::path::PathBuf;
 
 use crate::report::{FieldEntry, Report};
-use crate::scan::Scan;
+use crate::scan::{Coverage, Scan};
 use crate::source::Progress;
 
 /// Something the user asked for while a frame was drawn.
@@ -116,18 +116,34 @@ impl Comparison {
 }
 
 impl State {
-    /// Shows a finished scan, with its report.
+    /// Shows a finished scan (or a first look), with its report.
     pub fn show_scan(&mut self, scan: Box<Scan>) {
         self.report = Some(crate::report::build(&scan, crate::report::ReportOptions::default()));
         // A comparison is with the open source: compare the new one instead.
         if let Some(old) = self.comparison.take() {
             self.comparison = Some(Comparison::new(&scan, old.scan));
         }
+        // The whole read after a first look of the same source keeps what
+        // the user chose meanwhile.
+        let continues = self.showing_first_look_of(&scan.info.path);
         self.scan = Some(scan);
-        self.selected = self.select_when_read.take();
         self.generation += 1;
-        // Filters name the old source's fields and values.
-        self.set_row_filters(Vec::new());
+        if !continues {
+            self.selected = self.select_when_read.take();
+            // Filters name the old source's fields and values.
+            self.set_row_filters(Vec::new());
+        }
+    }
+
+    fn showing_first_look_of(&self, path: &std::path::Path) -> bool {
+        self.scan.as_ref().is_some_and(|s| matches!(s.coverage, Coverage::FirstLook(_)) && s.info.path == path)
+    }
+
+    /// Whether `scan`, stopped early, read fewer rows than the first look
+    /// on screen (which then stays).
+    pub fn first_look_says_more(&self, scan: &Scan) -> bool {
+        let shown = self.scan.as_ref().filter(|_| self.showing_first_look_of(&scan.info.path));
+        matches!(scan.coverage, Coverage::Stopped(_)) && shown.is_some_and(|s| s.shape.rows >= scan.shape.rows)
     }
 
     pub fn set_row_filters(&mut self, filters: Vec<crate::explore::RowFilter>) {
@@ -151,5 +167,45 @@ impl Reading {
     /// Share done in 0..=1, when the total is known.
     pub fn fraction(&self) -> Option<f32> {
         (self.progress.total > 0).then(|| (self.progress.done as f64 / self.progress.total as f64).min(1.0) as f32)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scan_of(path: &std::path::Path, options: crate::scan::ScanOptions) -> Box<Scan> {
+        let stop = std::sync::atomic::AtomicBool::new(false);
+        Box::new(crate::scan::scan_path(path, Default::default(), options, &stop, &mut |_| {}).unwrap())
+    }
+
+    #[test]
+    fn the_whole_read_after_a_first_look_keeps_the_selection_and_filters() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("rows.jsonl");
+        let text: String = (0..12_000).map(|i| format!("{{\"id\":{i}}}\n")).collect();
+        std::fs::write(&path, text).unwrap();
+        let first = scan_of(&path, crate::scan::ScanOptions { first_look: true, ..Default::default() });
+        let mut stopped = scan_of(&path, Default::default());
+        let whole = scan_of(&path, Default::default());
+
+        let mut state = State::default();
+        state.show_scan(first);
+        state.selected = Some("id".into());
+        state.set_row_filters(vec![crate::explore::RowFilter::Rows(vec![3])]);
+        stopped.coverage = Coverage::Stopped(500);
+        stopped.shape.rows = 500;
+        assert!(state.first_look_says_more(&stopped), "a read stopped before 10,000 rows says less");
+        assert!(!state.first_look_says_more(&whole));
+        state.show_scan(whole);
+        assert_eq!(state.scan.as_ref().unwrap().coverage, Coverage::Full);
+        assert_eq!(state.selected.as_deref(), Some("id"));
+        assert_eq!(state.row_filters.len(), 1);
+        // Another source starts afresh.
+        let other = dir.path().join("other.jsonl");
+        std::fs::write(&other, "{\"id\":1}\n").unwrap();
+        state.show_scan(scan_of(&other, Default::default()));
+        assert_eq!(state.selected, None);
+        assert!(state.row_filters.is_empty());
     }
 }

@@ -11,6 +11,8 @@ use crate::source::{OpenOptions, Progress};
 
 pub enum JobMessage {
     Progress(Progress),
+    /// The first rows, to look at while the rest is read.
+    FirstLook(Box<Scan>),
     Finished(Result<Box<Scan>, String>),
 }
 
@@ -23,15 +25,17 @@ pub struct ScanJob {
 
 impl ScanJob {
     /// Starts scanning `path`; `wake` is called after every message so the
-    /// window repaints (it is `Context::request_repaint` in the app).
-    pub fn start(path: PathBuf, wake: impl Fn() + Send + 'static) -> Self {
+    /// window repaints (it is `Context::request_repaint` in the app). With
+    /// `first_look`, a first look at the first rows comes before the whole
+    /// read (a source no longer than a first look is read once).
+    pub fn start(path: PathBuf, first_look: bool, wake: impl Fn() + Send + 'static) -> Self {
         let (tx, rx) = channel();
         let stop = Arc::new(AtomicBool::new(false));
         let thread_stop = stop.clone();
         let thread_path = path.clone();
         std::thread::Builder::new()
             .name("plumbline-scan".into())
-            .spawn(move || run(thread_path, thread_stop, tx, wake))
+            .spawn(move || run(thread_path, first_look, thread_stop, tx, wake))
             .expect("spawning a thread");
         ScanJob { path, messages: rx, stop }
     }
@@ -41,19 +45,43 @@ impl ScanJob {
     }
 }
 
-fn run(path: PathBuf, stop: Arc<AtomicBool>, tx: Sender<JobMessage>, wake: impl Fn()) {
-    let progress_tx = tx.clone();
+fn run(path: PathBuf, first_look: bool, stop: Arc<AtomicBool>, tx: Sender<JobMessage>, wake: impl Fn()) {
+    if first_look {
+        let options = ScanOptions { first_look: true, ..Default::default() };
+        match read(&path, options, &stop, &tx, &wake) {
+            Ok(scan) if matches!(scan.coverage, scan::Coverage::FirstLook(_)) && !stop.load(Ordering::Relaxed) => {
+                let _ = tx.send(JobMessage::FirstLook(scan));
+                wake();
+            }
+            // Read whole already, or broken: nothing more to read.
+            done => {
+                let _ = tx.send(JobMessage::Finished(done));
+                wake();
+                return;
+            }
+        }
+    }
+    let result = read(&path, ScanOptions::default(), &stop, &tx, &wake);
+    let _ = tx.send(JobMessage::Finished(result));
+    wake();
+}
+
+fn read(
+    path: &std::path::Path,
+    options: ScanOptions,
+    stop: &AtomicBool,
+    tx: &Sender<JobMessage>,
+    wake: &impl Fn(),
+) -> Result<Box<Scan>, String> {
     let outcome = crate::source::guard::catch(|| {
-        scan::scan_path(&path, OpenOptions::default(), ScanOptions::default(), &stop, &mut |p| {
-            let _ = progress_tx.send(JobMessage::Progress(p));
+        scan::scan_path(path, OpenOptions::default(), options, stop, &mut |p| {
+            let _ = tx.send(JobMessage::Progress(p));
             wake();
         })
     });
-    let result = match outcome {
+    match outcome {
         Ok(Ok(scan)) => Ok(Box::new(scan)),
         Ok(Err(e)) => Err(e.to_string()),
         Err(panic) => Err(format!("{}: reading stopped unexpectedly: {panic}", path.display())),
-    };
-    let _ = tx.send(JobMessage::Finished(result));
-    wake();
+    }
 }

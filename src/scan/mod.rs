@@ -14,6 +14,32 @@ use crate::source::{self, OpenOptions, Progress, Source, SourceError, SourceInfo
 /// Rows read for a schema-less format when only the shape is asked for.
 pub const SHAPE_ONLY_ROWS: u64 = 1000;
 
+/// Most rows a first look reads, and the most values (rows × leaf fields)
+/// it reads from a declared schema, so a wide file gets fewer rows. Our own
+/// choice, sized to answer within a second on two cores.
+pub const FIRST_LOOK_ROWS: u64 = 10_000;
+pub const FIRST_LOOK_VALUES: u64 = 2_000_000;
+/// The fewest rows a first look reads, however wide the source.
+pub const FIRST_LOOK_MIN_ROWS: u64 = 100;
+
+/// Rows a first look at `info` reads: [`FIRST_LOOK_ROWS`], fewer for a
+/// source with many declared leaf fields.
+pub fn first_look_rows(info: &SourceInfo) -> u64 {
+    let leaves = info.schema.as_ref().map_or(1, |s| s.fields().iter().map(|f| leaf_fields(f.data_type())).sum());
+    (FIRST_LOOK_VALUES / leaves.max(1) as u64).clamp(FIRST_LOOK_MIN_ROWS, FIRST_LOOK_ROWS)
+}
+
+fn leaf_fields(data_type: &arrow_schema::DataType) -> usize {
+    use arrow_schema::DataType as D;
+    match data_type {
+        D::Struct(fields) => fields.iter().map(|f| leaf_fields(f.data_type())).sum::<usize>().max(1),
+        D::List(f) | D::LargeList(f) | D::ListView(f) | D::LargeListView(f) | D::FixedSizeList(f, _) | D::Map(f, _) => {
+            leaf_fields(f.data_type())
+        }
+        _ => 1,
+    }
+}
+
 #[derive(Debug, Clone, Copy, Default)]
 pub struct ScanOptions {
     /// Read only the schema and metadata; for JSON and CSV (which declare no
@@ -24,6 +50,9 @@ pub struct ScanOptions {
     /// Read every row for the shape (kinds, nulls, missing keys) but keep
     /// no statistics (record types need only the shape).
     pub skip_statistics: bool,
+    /// Profile only the first rows (see [`first_look_rows`]): the footer
+    /// and the start of the first row group, or the first lines.
+    pub first_look: bool,
 }
 
 impl ScanOptions {
@@ -68,6 +97,8 @@ pub enum Coverage {
     SchemaOnly,
     /// The first rows only (shape-only on a schema-less format).
     FirstRows(u64),
+    /// A first look: statistics of the first rows only.
+    FirstLook(u64),
     /// Stopped by the user after this many rows.
     Stopped(u64),
     /// The source broke after this many rows; the message says where.
@@ -87,6 +118,9 @@ impl Coverage {
             Coverage::Full => None,
             Coverage::SchemaOnly => Some("schema and metadata only; no rows were read".into()),
             Coverage::FirstRows(n) => Some(format!("inferred from the first {n} rows only")),
+            Coverage::FirstLook(n) => {
+                Some(format!("a first look: the first {} rows only; the rest of the source was not read", crate::format::group_digits(*n)))
+            }
             Coverage::Stopped(n) => Some(format!("stopped by the user after {n} rows")),
             Coverage::Broken { rows, error } => Some(format!("the source broke after {rows} rows: {error}")),
             Coverage::PartialReport(note) => Some(note.clone()),
@@ -147,17 +181,20 @@ pub fn scan_source(
     if options.shape_only && has_schema {
         return Scan { info, shape: builder.finish(), coverage: Coverage::SchemaOnly, sample: None, from_report: None };
     }
-    if !options.shape_only
-        && let Some(sample) = options.sample
-    {
+    let reads_all = !options.shape_only && !options.first_look;
+    if reads_all && let Some(sample) = options.sample {
         return sample::scan_sample(source, info, sample, options.profiles(), stop, progress);
     }
-    if !options.shape_only
-        && let Some(parts) = source.split()
-    {
+    if reads_all && let Some(parts) = source.split() {
         return parts::scan_parts(info, parts, options.profiles(), stop, progress);
     }
-    let row_limit = options.shape_only.then_some(SHAPE_ONLY_ROWS);
+    let (row_limit, limited): (Option<u64>, fn(u64) -> Coverage) = if options.shape_only {
+        (Some(SHAPE_ONLY_ROWS), Coverage::FirstRows)
+    } else if options.first_look {
+        (Some(first_look_rows(&info)), Coverage::FirstLook)
+    } else {
+        (None, Coverage::FirstRows)
+    };
     let mut next = source.next_batch();
     let coverage = loop {
         if stop.load(Ordering::Relaxed) {
@@ -166,7 +203,8 @@ pub fn scan_source(
         if let Some(limit) = row_limit
             && builder.rows() >= limit
         {
-            break Coverage::FirstRows(builder.rows());
+            // A source that states its row count may have had no more.
+            break if info.rows == Some(builder.rows()) { Coverage::Full } else { limited(builder.rows()) };
         }
         let batch = match next {
             Ok(Some(batch)) => batch,
@@ -205,3 +243,56 @@ fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {
     }
 }
 
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scan_file(path: &Path, options: ScanOptions) -> Scan {
+        scan_path(path, OpenOptions::default(), options, &AtomicBool::new(false), &mut |_| {}).unwrap()
+    }
+
+    fn lines(dir: &Path, n: usize) -> std::path::PathBuf {
+        let path = dir.join(format!("{n}.jsonl"));
+        let text: String = (0..n).map(|i| format!("{{\"id\":{i},\"even\":{}}}\n", i % 2 == 0)).collect();
+        std::fs::write(&path, text).unwrap();
+        path
+    }
+
+    #[test]
+    fn a_first_look_reads_the_first_rows_and_says_so() {
+        let dir = tempfile::tempdir().unwrap();
+        let first_look = ScanOptions { first_look: true, ..Default::default() };
+        let long = scan_file(&lines(dir.path(), 25_000), first_look);
+        assert_eq!(long.coverage, Coverage::FirstLook(FIRST_LOOK_ROWS));
+        assert_eq!(long.shape.rows, FIRST_LOOK_ROWS);
+        let id = long.shape.find("id").unwrap();
+        let numbers = id.stats.as_ref().unwrap().numbers.as_ref().unwrap();
+        assert_eq!(numbers.moments.max(), Some((FIRST_LOOK_ROWS - 1) as f64), "statistics of the rows read");
+        assert!(long.coverage.describe().unwrap().contains("first look: the first 10,000 rows"));
+        // A source no longer than a first look is read whole.
+        let short = scan_file(&lines(dir.path(), 300), first_look);
+        assert_eq!((short.coverage, short.shape.rows), (Coverage::Full, 300));
+    }
+
+    #[test]
+    fn a_first_look_at_a_wide_source_reads_fewer_rows() {
+        use arrow_schema::{DataType, Field, Schema};
+        let info = |fields: usize| SourceInfo {
+            path: "wide.parquet".into(),
+            format: source::Format::Parquet,
+            compression: source::Compression::None,
+            bytes: 1,
+            parts: 1,
+            rows: None,
+            schema: Some(std::sync::Arc::new(Schema::new(
+                (0..fields).map(|i| Field::new(format!("f{i}"), DataType::Int64, true)).collect::<Vec<_>>(),
+            ))),
+            parquet_leaves: None,
+            facts: Default::default(),
+        };
+        assert_eq!(first_look_rows(&info(3)), FIRST_LOOK_ROWS);
+        assert_eq!(first_look_rows(&info(2_000)), 1_000);
+        assert_eq!(first_look_rows(&info(1_000_000)), FIRST_LOOK_MIN_ROWS);
+    }
+}
