@@ -6,6 +6,8 @@
                            bool, a list, a struct), pyarrow's defaults
                            (snappy, dictionary pages, 1 Mi-row row groups)
   make-jsonl PATH ROWS     the same rows as JSON Lines
+  make-parts DIR PARTS ROWS  a directory of PARTS Parquet part files of ROWS
+                           rows each, in Hive-style `week=N` partitions
   read-table PATH          median seconds of pyarrow.parquet.read_table (3 runs)
   polars-parquet PATH      median seconds of polars read_parquet + statistics
   polars-ndjson PATH       seconds of polars read_ndjson + statistics (1 run)
@@ -96,6 +98,20 @@ def make_jsonl(path, rows):
                 out.write("\n")
 
 
+def make_parts(directory, parts, rows):
+    import os
+
+    import numpy as np
+    import pyarrow.parquet as pq
+
+    rng = np.random.default_rng(7)
+    for part in range(parts):
+        folder = os.path.join(directory, f"week={part % 52}")
+        os.makedirs(folder, exist_ok=True)
+        table = chunk_table(rng, part * rows, rows)
+        pq.write_table(table, os.path.join(folder, f"part-{part:05d}.parquet"))
+
+
 def leaf_exprs(schema):
     """(name, expression, numeric) for every leaf Plumbline profiles."""
     import polars as pl
@@ -147,6 +163,8 @@ def main():
         make_parquet(path, int(sys.argv[3]))
     elif command == "make-jsonl":
         make_jsonl(path, int(sys.argv[3]))
+    elif command == "make-parts":
+        make_parts(path, int(sys.argv[3]), int(sys.argv[4]))
     elif command == "read-table":
         import pyarrow.parquet as pq
 
