@@ -92,3 +92,18 @@ fn no_examples_leaves_the_values_out() {
     let (_, shown) = page(&file, ReportOptions::default());
     assert!(shown.root_element().text().collect::<String>().contains("Ada Quill"));
 }
+
+/// Printed, a field's section may run onto the next page (keeping each
+/// whole made a page per field: 32 pages with most of each blank for the
+/// demo file, Chromium's print to PDF), but no table, chart or finding is
+/// cut, and no heading ends a page.
+#[test]
+fn printing_keeps_tables_and_charts_whole_without_a_page_per_field() {
+    let demo = Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data/deliveries.parquet");
+    let (_, html) = page(&demo, ReportOptions::default());
+    let css: String = select(&html, "style").iter().flat_map(|s| s.text()).collect();
+    let print = css.split("@media print").nth(1).expect("print rules");
+    assert!(!print.contains("section.field{break-inside:avoid"), "{print}");
+    assert!(print.contains("table,svg,.finding{break-inside:avoid}"), "{print}");
+    assert!(print.contains("h2,h3{break-after:avoid}"), "{print}");
+}

@@ -22,7 +22,7 @@ td,th{padding:.15rem .6rem .15rem 0;text-align:left;vertical-align:top}th{color:
 td.n{text-align:right;font-variant-numeric:tabular-nums}
 svg{max-width:100%;height:auto}.bar{fill:#5468a0}.fill{fill:#2e7d78}
 .finding{margin:.2rem 0}.drifted{color:#b2282f}
-@media print{body{max-width:none}section.field{break-inside:avoid}a{color:inherit;text-decoration:none}}
+@media print{body{max-width:none;font-size:10pt}a{color:inherit;text-decoration:none}h2,h3{break-after:avoid}table,svg,.finding{break-inside:avoid}}
 ";
 
 /// Text from the data or a path, safe as HTML text and attribute values.
