@@ -287,6 +287,32 @@ fn gzip_csv_and_tsv_are_detected_and_typed() {
 }
 
 #[test]
+fn a_sample_of_a_large_file_reads_pieces_of_it_and_says_so() {
+    let dir = tempfile::tempdir().unwrap();
+    let text: String = (0..100_000)
+        .map(|i| format!("{{\"id\":{i},\"v\":{}}}\n", if i % 7 == 0 { "\"x\"".to_string() } else { i.to_string() }))
+        .collect();
+    let path = write(dir.path(), "big.jsonl", &text);
+    let report = dir.path().join("r.json");
+    let o = plumbline(&["profile", path.to_str().unwrap(), "--sample", "200", "--json", report.to_str().unwrap()]);
+    assert!(o.status.success(), "{}", stderr(&o));
+    assert!(stdout(&o).contains("SAMPLE: a spread sample of 200 rows, drawn uniformly from the"), "{}", stdout(&o));
+    let r = read_json(&report);
+    assert_eq!((r["sampled"].as_bool(), r["sample"]["rows"].as_u64()), (Some(true), Some(200)));
+    let (read, of) = (r["sample"]["pieces_read"].as_u64().unwrap(), r["sample"]["pieces"].as_u64().unwrap());
+    assert!(read * 10 < of, "{read} of {of} pieces");
+    assert!(r["sample"]["from_rows"].as_u64().unwrap() < 10_000);
+    // Rows before a piece were never counted: its examples have no row number.
+    let v = r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "v").unwrap();
+    let rows: Vec<&Value> = v["examples"].as_array().unwrap().iter().map(|e| &e["row"]).collect();
+    assert!(rows.iter().any(|r| r.is_null()), "{rows:?}");
+
+    let whole = plumbline(&["profile", path.to_str().unwrap(), "--sample", "200", "--sample-from-all"]);
+    assert!(whole.status.success(), "{}", stderr(&whole));
+    assert!(stdout(&whole).contains("SAMPLE: a uniform sample of 200 of the 100,000 rows read"), "{}", stdout(&whole));
+}
+
+#[test]
 fn a_sample_profiles_that_many_rows_and_says_so() {
     let dir = tempfile::tempdir().unwrap();
     let report = dir.path().join("r.json");
@@ -301,7 +327,8 @@ fn a_sample_profiles_that_many_rows_and_says_so() {
     assert_eq!(field(&r, "delivery_id")["count"], 500);
 
     // Examples name the row of the file: that line holds the value shown.
-    let lines: Vec<String> = std::fs::read_to_string(sample("deliveries.jsonl")).unwrap().lines().map(String::from).collect();
+    let lines: Vec<String> =
+        std::fs::read_to_string(sample("deliveries.jsonl")).unwrap().lines().map(String::from).collect();
     let examples = field(&r, "zip_code")["examples"].as_array().unwrap().clone();
     assert!(!examples.is_empty(), "the sample still meets the minority kind");
     for e in &examples {
@@ -312,8 +339,13 @@ fn a_sample_profiles_that_many_rows_and_says_so() {
     // The same seed draws the same rows; another seed others.
     let again = dir.path().join("again.json");
     let other = dir.path().join("other.json");
-    assert!(plumbline(&["profile", &sample("deliveries.jsonl"), "--sample", "500", "--json", again.to_str().unwrap()]).status.success());
-    let args = ["profile", &sample("deliveries.jsonl"), "--sample", "500", "--seed", "2", "--json", other.to_str().unwrap()];
+    assert!(
+        plumbline(&["profile", &sample("deliveries.jsonl"), "--sample", "500", "--json", again.to_str().unwrap()])
+            .status
+            .success()
+    );
+    let args =
+        ["profile", &sample("deliveries.jsonl"), "--sample", "500", "--seed", "2", "--json", other.to_str().unwrap()];
     assert!(plumbline(&args).status.success());
     let (again, other) = (read_json(&again), read_json(&other));
     assert_eq!(r["fields"], again["fields"]);
@@ -325,7 +357,8 @@ fn a_sample_profiles_that_many_rows_and_says_so() {
 fn a_sample_larger_than_the_file_profiles_every_row() {
     let dir = tempfile::tempdir().unwrap();
     let report = dir.path().join("r.json");
-    let o = plumbline(&["profile", &sample("deliveries.parquet"), "--sample", "5000", "--json", report.to_str().unwrap()]);
+    let o =
+        plumbline(&["profile", &sample("deliveries.parquet"), "--sample", "5000", "--json", report.to_str().unwrap()]);
     assert!(o.status.success(), "{}", stderr(&o));
     assert!(!stdout(&o).contains("SAMPLE:"));
     let r = read_json(&report);
@@ -395,7 +428,10 @@ fn types_writes_to_stdout_or_atomically_to_a_file() {
     let out = dir.path().join("delivery.rs");
     let args = ["types", &sample("deliveries.jsonl"), "--lang", "rust", "-o", out.to_str().unwrap()];
     assert!(plumbline(&args).status.success());
-    assert!(std::fs::read_to_string(&out).unwrap().contains("pub struct Deliveries {"), "the root is named after the file");
+    assert!(
+        std::fs::read_to_string(&out).unwrap().contains("pub struct Deliveries {"),
+        "the root is named after the file"
+    );
     let again = plumbline(&args);
     assert!(assert_one_error_line(&again).contains("exists"), "refuses to overwrite without --force");
     let mut forced = args.to_vec();
@@ -403,7 +439,11 @@ fn types_writes_to_stdout_or_atomically_to_a_file() {
     assert!(plumbline(&forced).status.success());
 
     let sampled = plumbline(&["types", &sample("deliveries.jsonl"), "--lang", "python", "--sample", "100"]);
-    assert!(stdout(&sampled).contains("# SAMPLED: a uniform sample of 100 of the 3,000 rows read"), "{}", stdout(&sampled));
+    assert!(
+        stdout(&sampled).contains("# SAMPLED: a uniform sample of 100 of the 3,000 rows read"),
+        "{}",
+        stdout(&sampled)
+    );
     let missing = plumbline(&["types", "no-such-file.jsonl", "--lang", "rust"]);
     assert!(assert_one_error_line(&missing).contains("no-such-file.jsonl"));
 }
@@ -421,9 +461,9 @@ fn a_file_broken_half_way_gives_no_types() {
 fn what_a_target_cannot_express_is_warned_about_by_field() {
     // An Arrow IPC file with an unsigned 64-bit column, an integer-keyed
     // map and a time of day.
-    use std::sync::Arc;
     use arrow_array::builder::{Int32Builder, MapBuilder, StringBuilder};
     use arrow_array::{ArrayRef, RecordBatch, Time64MicrosecondArray, UInt64Array};
+    use std::sync::Arc;
     let mut map = MapBuilder::new(None, Int32Builder::new(), StringBuilder::new());
     map.keys().append_value(7);
     map.values().append_value("seven");
@@ -436,7 +476,8 @@ fn what_a_target_cannot_express_is_warned_about_by_field() {
     let batch = RecordBatch::try_from_iter(columns).unwrap();
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("odd.arrow");
-    let mut writer = arrow_ipc::writer::FileWriter::try_new(std::fs::File::create(&path).unwrap(), &batch.schema()).unwrap();
+    let mut writer =
+        arrow_ipc::writer::FileWriter::try_new(std::fs::File::create(&path).unwrap(), &batch.schema()).unwrap();
     writer.write(&batch).unwrap();
     writer.finish().unwrap();
 
@@ -454,7 +495,8 @@ fn what_a_target_cannot_express_is_warned_about_by_field() {
 fn fit_exits_0_when_every_row_fits_and_1_with_the_verdicts_when_not() {
     let dir = tempfile::tempdir().unwrap();
     let scala = dir.path().join("delivery.scala");
-    let types = plumbline(&["types", &sample("deliveries.parquet"), "--lang", "scala", "-o", &scala.display().to_string()]);
+    let types =
+        plumbline(&["types", &sample("deliveries.parquet"), "--lang", "scala", "-o", &scala.display().to_string()]);
     assert!(types.status.success(), "{}", stderr(&types));
 
     let o = plumbline(&["fit", &sample("deliveries.parquet"), &scala.display().to_string()]);
@@ -462,11 +504,23 @@ fn fit_exits_0_when_every_row_fits_and_1_with_the_verdicts_when_not() {
     assert_eq!(stdout(&o), "Fits: every one of the 3,000 rows read fits the definition.\n");
 
     let json = dir.path().join("fit.json");
-    let o = plumbline(&["fit", &sample("later/deliveries.parquet"), &scala.display().to_string(), "--json", &json.display().to_string()]);
+    let o = plumbline(&[
+        "fit",
+        &sample("later/deliveries.parquet"),
+        &scala.display().to_string(),
+        "--json",
+        &json.display().to_string(),
+    ]);
     assert_eq!(o.status.code(), Some(1), "{}{}", stdout(&o), stderr(&o));
     let out = stdout(&o);
-    assert!(out.contains("does not fit: rating: the definition says 8-bit integer; the data holds 32-bit float"), "{out}");
-    assert!(out.contains("does not fit: courier.vehicle: not optional in the definition, but the data has nulls"), "{out}");
+    assert!(
+        out.contains("does not fit: rating: the definition says 8-bit integer; the data holds 32-bit float"),
+        "{out}"
+    );
+    assert!(
+        out.contains("does not fit: courier.vehicle: not optional in the definition, but the data has nulls"),
+        "{out}"
+    );
     assert!(out.contains("note: co2_grams: the data has it (32-bit integer); the definition does not"), "{out}");
     assert!(out.ends_with("Does not fit: 2 differences make rows of the 1,500 read fail.\n"), "{out}");
     let report = read_json(&json);
@@ -481,7 +535,15 @@ fn fit_exits_0_when_every_row_fits_and_1_with_the_verdicts_when_not() {
     assert_eq!(vehicle["examples"][0]["value"], "null");
 
     // --no-examples leaves the values out of the text and the JSON.
-    let o = plumbline(&["fit", &sample("later/deliveries.parquet"), &scala.display().to_string(), "--no-examples", "--json", &json.display().to_string(), "--force"]);
+    let o = plumbline(&[
+        "fit",
+        &sample("later/deliveries.parquet"),
+        &scala.display().to_string(),
+        "--no-examples",
+        "--json",
+        &json.display().to_string(),
+        "--force",
+    ]);
     assert_eq!(o.status.code(), Some(1));
     assert!(!stdout(&o).contains("e.g."), "{}", stdout(&o));
     assert!(read_json(&json)["verdicts"][0]["examples"][0].get("value").is_none());
@@ -497,7 +559,8 @@ fn fit_errors_name_the_definition_and_the_position() {
 
     let unnamed = dir.path().join("row.txt");
     std::fs::write(&unnamed, "id BIGINT NOT NULL").unwrap();
-    let line = assert_one_error_line(&plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string()]));
+    let line =
+        assert_one_error_line(&plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string()]));
     assert!(line.contains("give --lang"), "{line}");
     let o = plumbline(&["fit", &sample("deliveries.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]);
     assert_eq!(o.status.code(), Some(1), "{}", stdout(&o));
@@ -511,7 +574,13 @@ fn fit_errors_name_the_definition_and_the_position() {
     assert!(!line.contains("internal"), "{line}");
     assert!(stdout(&o).is_empty(), "{}", stdout(&o));
 
-    let line = assert_one_error_line(&plumbline(&["fit", &sample("nowhere.parquet"), &unnamed.display().to_string(), "--lang", "spark-ddl"]));
+    let line = assert_one_error_line(&plumbline(&[
+        "fit",
+        &sample("nowhere.parquet"),
+        &unnamed.display().to_string(),
+        "--lang",
+        "spark-ddl",
+    ]));
     assert!(line.contains("nowhere.parquet"), "{line}");
 }
 
@@ -562,9 +631,21 @@ fn html_reports_are_written_once_and_replaced_only_with_force() {
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.starts_with("<!DOCTYPE html>"));
     assert!(page.contains("<h1>Profile of deliveries.parquet</h1>"));
-    let again = assert_one_error_line(&plumbline(&["profile", &sample("deliveries.parquet"), "--html", &html.display().to_string()]));
+    let again = assert_one_error_line(&plumbline(&[
+        "profile",
+        &sample("deliveries.parquet"),
+        "--html",
+        &html.display().to_string(),
+    ]));
     assert!(again.contains("report.html"), "{again}");
-    let o = plumbline(&["compare", &sample("deliveries.parquet"), &sample("later/deliveries.parquet"), "--html", &html.display().to_string(), "--force"]);
+    let o = plumbline(&[
+        "compare",
+        &sample("deliveries.parquet"),
+        &sample("later/deliveries.parquet"),
+        "--html",
+        &html.display().to_string(),
+        "--force",
+    ]);
     assert_eq!(o.status.code(), Some(0), "{}", stderr(&o));
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("<h2>Compared with the earlier source</h2>"));

@@ -8,8 +8,8 @@ mod common;
 
 use std::path::Path;
 
-use plumbline::shape::Kind;
 use plumbline::scan::{SampleOptions, ScanOptions};
+use plumbline::shape::Kind;
 
 fn sample(name: &str) -> std::path::PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("sample-data").join(name)
@@ -29,7 +29,10 @@ fn committed_files_match_the_generator() {
     ] {
         let fresh = std::fs::read(dir.path().join(name)).unwrap();
         let committed = std::fs::read(sample(name)).unwrap();
-        assert!(fresh == committed, "sample-data/{name} differs from the generator's output; run `cargo run --example make-sample-data`");
+        assert!(
+            fresh == committed,
+            "sample-data/{name} differs from the generator's output; run `cargo run --example make-sample-data`"
+        );
     }
 }
 
@@ -46,7 +49,17 @@ fn the_demo_shows_nesting_nulls_missing_and_mixed_kinds() {
     assert!(scan.shape.find("booked_local").unwrap().kinds.forms.timestamp_no_zone > 0);
     let parquet = common::full(&sample("deliveries.parquet")).unwrap();
     assert_eq!(parquet.shape.find("attributes{key}").unwrap().kinds.get(Kind::String) > 0, true);
-    assert!(parquet.shape.find("parcel.declared_value").unwrap().declared.as_ref().unwrap().arrow.contains("Decimal128(10, 2)"));
+    assert!(
+        parquet
+            .shape
+            .find("parcel.declared_value")
+            .unwrap()
+            .declared
+            .as_ref()
+            .unwrap()
+            .arrow
+            .contains("Decimal128(10, 2)")
+    );
 }
 
 #[test]
@@ -62,7 +75,8 @@ fn the_later_drop_drifts_as_described() {
 fn the_demo_shows_every_finding_where_the_readme_says() {
     use plumbline::profile::findings::findings;
     let scan = common::full(&sample("deliveries.jsonl")).unwrap();
-    let kinds = |path: &str| -> Vec<&'static str> { findings(scan.shape.find(path).unwrap()).iter().map(|f| f.kind).collect() };
+    let kinds =
+        |path: &str| -> Vec<&'static str> { findings(scan.shape.find(path).unwrap()).iter().map(|f| f.kind).collect() };
     let expect = [
         ("note", "mostly_empty"),
         ("currency", "single_value"),
@@ -81,10 +95,16 @@ fn the_demo_shows_every_finding_where_the_readme_says() {
         assert!(kinds(path).contains(&kind), "{path}: {kind} not in {:?}", kinds(path));
     }
     assert!(!kinds("pickup.lat").contains(&"unique_per_row"), "distinct floats are not a key");
-    let outliers = findings(scan.shape.find("distance_km").unwrap()).into_iter().find(|f| f.kind == "far_outliers").unwrap();
+    let outliers =
+        findings(scan.shape.find("distance_km").unwrap()).into_iter().find(|f| f.kind == "far_outliers").unwrap();
     assert_eq!(outliers.examples, vec!["999".to_string()]);
-    let variants = findings(scan.shape.find("tags[]").unwrap()).into_iter().find(|f| f.kind == "case_variants").unwrap();
-    assert!(variants.examples.iter().any(|g| g.contains("fragile") && g.contains("FRAGILE")), "{:?}", variants.examples);
+    let variants =
+        findings(scan.shape.find("tags[]").unwrap()).into_iter().find(|f| f.kind == "case_variants").unwrap();
+    assert!(
+        variants.examples.iter().any(|g| g.contains("fragile") && g.contains("FRAGILE")),
+        "{:?}",
+        variants.examples
+    );
 }
 
 /// The statistics of two reports agree field by field.
@@ -94,7 +114,20 @@ fn assert_same_statistics(left: &serde_json::Value, right: &serde_json::Value) {
     assert_eq!(lf.len(), rf.len());
     for (l, r) in lf.iter().zip(&rf) {
         assert_eq!(l["path"], r["path"]);
-        for key in ["count", "nulls", "missing", "kinds", "distinct", "distinct_exact", "min", "max", "quantiles", "top_exact", "findings", "calendar"] {
+        for key in [
+            "count",
+            "nulls",
+            "missing",
+            "kinds",
+            "distinct",
+            "distinct_exact",
+            "min",
+            "max",
+            "quantiles",
+            "top_exact",
+            "findings",
+            "calendar",
+        ] {
             assert_eq!(l.get(key), r.get(key), "{}: {key}", l["path"]);
         }
         if l["top_exact"] == true {
@@ -133,12 +166,16 @@ fn parquet_read_in_parallel_equals_the_same_rows_read_in_order_from_ipc() {
 fn a_seeded_sample_draws_the_same_rows_whatever_the_batches() {
     // Parquet (row groups of 1,000) and IPC (other batch sizes) hold the
     // same rows: the same seed must pick the same ones.
-    let options = ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 3 }), ..Default::default() };
+    let options =
+        ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 3, every_row: false }), ..Default::default() };
     let parquet = report_of("deliveries.parquet", options);
     assert_eq!((parquet["sampled"].as_bool(), parquet["source"]["rows"].as_u64()), (Some(true), Some(700)));
     assert_eq!(parquet["sample"]["from_rows"], 3000);
     assert_same_statistics(&parquet, &report_of("deliveries.arrow", options));
-    let other_seed = ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 4 }), ..Default::default() };
-    let fee = |r: &serde_json::Value| r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "fee").unwrap()["mean"].clone();
+    let other_seed =
+        ScanOptions { sample: Some(SampleOptions { rows: 700, seed: 4, every_row: false }), ..Default::default() };
+    let fee = |r: &serde_json::Value| {
+        r["fields"].as_array().unwrap().iter().find(|f| f["path"] == "fee").unwrap()["mean"].clone()
+    };
     assert_ne!(fee(&parquet), fee(&report_of("deliveries.parquet", other_seed)));
 }

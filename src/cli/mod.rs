@@ -167,12 +167,16 @@ pub struct TypesArgs {
     /// Read the file as this format instead of detecting it.
     #[arg(long, value_enum)]
     pub format: Option<FormatChoice>,
-    /// Derive the types from a uniform sample of N rows (the header says so).
+    /// Derive the types from a sample of N rows (the header says so); as
+    /// for `profile --sample`, a large file is sampled from pieces of it.
     #[arg(long, value_name = "N", value_parser = clap::value_parser!(u64).range(1..=crate::sample::MAX_ROWS as u64))]
     pub sample: Option<u64>,
     /// Seed of the sample.
     #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
     pub seed: u64,
+    /// Draw the sample from every row, reading the whole source.
+    #[arg(long, requires = "sample")]
+    pub sample_from_all: bool,
     /// Derive the types from the first rows only (the header says so).
     #[arg(long, conflicts_with = "sample")]
     pub first_look: bool,
@@ -202,13 +206,19 @@ pub struct ProfileArgs {
     /// Leave data values (examples) out of the report and the output.
     #[arg(long)]
     pub no_examples: bool,
-    /// Profile a uniform sample of N rows (every row is read; only the
-    /// sample is profiled). Rows outside the sample are not checked.
+    /// Profile a sample of N rows; rows outside it are not checked. A
+    /// large Parquet or uncompressed JSON Lines file, or a directory, is
+    /// sampled from pieces picked at random, reading about 4×N rows in
+    /// all; anything else is read whole and sampled uniformly.
     #[arg(long, value_name = "N", conflicts_with = "shape_only", value_parser = clap::value_parser!(u64).range(1..=crate::sample::MAX_ROWS as u64))]
     pub sample: Option<u64>,
     /// Seed of the sample, so a rerun draws the same rows.
     #[arg(long, value_name = "S", requires = "sample", default_value_t = crate::sample::DEFAULT_SEED)]
     pub seed: u64,
+    /// Draw the sample from every row, reading the whole source (uniform
+    /// over all rows, but as slow as profiling every row).
+    #[arg(long, requires = "sample")]
+    pub sample_from_all: bool,
     /// Profile only the first rows (at most 10,000; fewer for wide
     /// files): the footer and the start of the first row group, or the
     /// first lines. Answers within a second on any size; says it is partial.
@@ -224,7 +234,12 @@ pub fn main() -> ExitCode {
         Some(Command::Fit(args)) => run_fit(&args),
         Some(Command::Compare(args)) => run_compare(&args),
         Some(Command::Plan(args)) => run_plan(&args),
-        None => match crate::gui::run(crate::gui::Start { path: cli.path, field: cli.field, area: cli.area, compare: cli.compare }) {
+        None => match crate::gui::run(crate::gui::Start {
+            path: cli.path,
+            field: cli.field,
+            area: cli.area,
+            compare: cli.compare,
+        }) {
             Ok(()) => ExitCode::SUCCESS,
             Err(e) => fail(&e),
         },
@@ -238,12 +253,19 @@ fn fail(message: &dyn std::fmt::Display) -> ExitCode {
 
 fn run_profile(args: &ProfileArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
-    let sample = args.sample.map(|rows| SampleOptions { rows: rows.min(usize::MAX as u64) as usize, seed: args.seed });
-    let options = ScanOptions { shape_only: args.shape_only, sample, first_look: args.first_look, ..Default::default() };
+    let sample = args.sample.map(|rows| SampleOptions {
+        rows: rows.min(usize::MAX as u64) as usize,
+        seed: args.seed,
+        every_row: args.sample_from_all,
+    });
+    let options =
+        ScanOptions { shape_only: args.shape_only, sample, first_look: args.first_look, ..Default::default() };
     let stop = AtomicBool::new(false);
     // Drawn only when stderr is a terminal (indicatif checks).
     let bar = indicatif::ProgressBar::with_draw_target(None, indicatif::ProgressDrawTarget::stderr());
-    if let Ok(style) = indicatif::ProgressStyle::with_template("reading {percent:>3}% [{bar:32}] {elapsed} (about {eta} left)") {
+    if let Ok(style) =
+        indicatif::ProgressStyle::with_template("reading {percent:>3}% [{bar:32}] {elapsed} (about {eta} left)")
+    {
         bar.set_style(style.progress_chars("=> "));
     }
     let mut show_progress = |p: crate::source::Progress| {
@@ -279,7 +301,8 @@ fn run_profile(args: &ProfileArgs) -> ExitCode {
 
 fn run_types(args: &TypesArgs) -> ExitCode {
     let open = OpenOptions { format: args.format };
-    let sample = args.sample.map(|rows| SampleOptions { rows: rows as usize, seed: args.seed });
+    let sample =
+        args.sample.map(|rows| SampleOptions { rows: rows as usize, seed: args.seed, every_row: args.sample_from_all });
     let options = ScanOptions { sample, skip_statistics: true, first_look: args.first_look, ..Default::default() };
     let stop = AtomicBool::new(false);
     let scan = match scan::scan_path(&args.path, open, options, &stop, &mut |_| {}) {
@@ -359,7 +382,10 @@ fn run_plan(args: &PlanArgs) -> ExitCode {
     };
     let driver_path = output.with_extension("py");
     if driver_path == *output {
-        return fail(&format!("{}: the script needs a name not ending in .py (the driver takes that)", output.display()));
+        return fail(&format!(
+            "{}: the script needs a name not ending in .py (the driver takes that)",
+            output.display()
+        ));
     }
     for (path, text) in [(output, script), (&driver_path, crate::plan::driver(&plan))] {
         if let Err(e) = report::write::write_atomically(path, text.as_bytes(), args.force) {
@@ -378,7 +404,10 @@ fn run_plan(args: &PlanArgs) -> ExitCode {
 fn run_fit(args: &FitArgs) -> ExitCode {
     use crate::fit::{self, DefinitionLang, FitOptions};
     let Some(lang) = args.lang.or_else(|| DefinitionLang::from_path(&args.definition)) else {
-        return fail(&format!("{}: cannot tell the definition's language from its name; give --lang", args.definition.display()));
+        return fail(&format!(
+            "{}: cannot tell the definition's language from its name; give --lang",
+            args.definition.display()
+        ));
     };
     let text = match std::fs::read_to_string(&args.definition) {
         Ok(t) => t,

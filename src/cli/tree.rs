@@ -2,10 +2,10 @@
 
 use std::fmt::Write as _;
 
+use crate::format::{group_digits, human_bytes};
 use crate::report::ReportOptions;
 use crate::scan::Scan;
 use crate::shape::FieldShape;
-use crate::format::{group_digits, human_bytes};
 use crate::source::Compression;
 
 pub fn render(scan: &Scan, options: ReportOptions) -> String {
@@ -101,10 +101,12 @@ pub fn render(scan: &Scan, options: ReportOptions) -> String {
 /// Distinct count (`≈` when sketched) and the value range, when profiled.
 fn summary(f: &FieldShape) -> (String, String) {
     let Some(stats) = f.stats.as_deref() else { return (String::new(), String::new()) };
-    let distinct = stats.distinct_count().map_or(String::new(), |d| {
-        format!("{}{}", if d.exact { "" } else { "≈" }, group_digits(d.value))
-    });
-    let range = if let (Some((lo, hi)), crate::shape::Unified::One(crate::shape::Kind::Int)) = (f.kinds.int_range, f.kinds.unified()) {
+    let distinct = stats
+        .distinct_count()
+        .map_or(String::new(), |d| format!("{}{}", if d.exact { "" } else { "≈" }, group_digits(d.value)));
+    let range = if let (Some((lo, hi)), crate::shape::Unified::One(crate::shape::Kind::Int)) =
+        (f.kinds.int_range, f.kinds.unified())
+    {
         format!("{lo} … {hi}")
     } else if let Some(n) = stats.numbers.as_ref().filter(|n| n.moments.count() > 0) {
         format!("{} … {}", short(n.moments.min().unwrap_or(0.0)), short(n.moments.max().unwrap_or(0.0)))
@@ -125,7 +127,9 @@ fn short(v: f64) -> String {
 
 fn display_name(f: &FieldShape) -> String {
     match f.role {
-        crate::shape::Role::Member | crate::shape::Role::Variant => f.path.rsplit_once('.').map_or(f.path.clone(), |(_, n)| n.to_string()).replace("``", "`"),
+        crate::shape::Role::Member | crate::shape::Role::Variant => {
+            f.path.rsplit_once('.').map_or(f.path.clone(), |(_, n)| n.to_string()).replace("``", "`")
+        }
         crate::shape::Role::Element => "[]".into(),
         crate::shape::Role::MapKey => "{key}".into(),
         crate::shape::Role::MapValue => "{}".into(),
@@ -154,7 +158,7 @@ fn notes(f: &FieldShape, options: ReportOptions) -> String {
     }
     if !options.no_examples {
         let examples: Vec<String> =
-            f.minority_examples().iter().map(|(k, e)| format!("row {} {}: {}", e.row, k.name(), e.value)).collect();
+            f.minority_examples().iter().map(|(k, e)| format!("{} {}: {}", e.place(), k.name(), e.value)).collect();
         if !examples.is_empty() {
             parts.push(format!("e.g. {}", examples.join("; ")));
         }

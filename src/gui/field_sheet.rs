@@ -17,7 +17,11 @@ pub struct FieldSheet;
 impl FieldSheet {
     pub fn show(&mut self, ui: &mut egui::Ui, state: &State) -> Vec<Intent> {
         let Some(field) = state.selected_entry() else {
-            ui.weak(if state.scan.is_some() { "Select a field in the Field tree." } else { "Open a source to see its fields." });
+            ui.weak(if state.scan.is_some() {
+                "Select a field in the Field tree."
+            } else {
+                "Open a source to see its fields."
+            });
             return Vec::new();
         };
         let mut filter = None;
@@ -53,12 +57,16 @@ fn show_field(ui: &mut egui::Ui, field: &FieldEntry) -> Option<RowFilter> {
         }
         if let Some(c) = &stats.calendar {
             let bars: Vec<(String, u64)> = c.buckets.iter().map(|b| (b.label.clone(), b.count)).collect();
-            section(ui, &format!("Over time (by {:?}{})", c.unit, if c.exact { "" } else { ", estimated" }).to_lowercase(), |ui| {
-                if let Some(i) = bar_chart(ui, "calendar", &bars, true) {
-                    let b = &c.buckets[i];
-                    clicked = Some(on_field(Condition::During { start: b.start, end: b.end }));
-                }
-            });
+            section(
+                ui,
+                &format!("Over time (by {:?}{})", c.unit, if c.exact { "" } else { ", estimated" }).to_lowercase(),
+                |ui| {
+                    if let Some(i) = bar_chart(ui, "calendar", &bars, true) {
+                        let b = &c.buckets[i];
+                        clicked = Some(on_field(Condition::During { start: b.start, end: b.end }));
+                    }
+                },
+            );
         }
         if let Some(top) = stats.top.as_ref().filter(|t| !t.is_empty()) {
             section(ui, "Top values", |ui| {
@@ -141,7 +149,8 @@ fn types_section(ui: &mut egui::Ui, field: &FieldEntry) {
         }
         if !field.string_forms.is_empty() {
             ui.label("Text forms");
-            let forms: Vec<String> = field.string_forms.iter().map(|(f, n)| format!("{f} {}", share(*n, present))).collect();
+            let forms: Vec<String> =
+                field.string_forms.iter().map(|(f, n)| format!("{f} {}", share(*n, present))).collect();
             ui.label(forms.join(", "));
             ui.end_row();
         }
@@ -149,7 +158,8 @@ fn types_section(ui: &mut egui::Ui, field: &FieldEntry) {
     if !field.examples.is_empty() {
         ui.label("Examples of the less common kinds:");
         for e in &field.examples {
-            ui.monospace(format!("row {} ({}): {}", group_digits(e.row), e.kind, e.value));
+            let place = e.row.map_or_else(|| "an uncounted row".to_string(), |r| format!("row {}", group_digits(r)));
+            ui.monospace(format!("{place} ({}): {}", e.kind, e.value));
         }
     }
 }
@@ -218,7 +228,7 @@ fn stat_rows(s: &StatsEntry) -> Vec<(&'static str, String)> {
             (Some(false), Some(e)) => format!(" (rank error ≤ {:.0} %)", e * 100.0),
             _ => String::new(),
         };
-        let values = [("p1", q.p1), ("p5", q.p5), ("p25", q.p25), ("p50", q.p50), ("p75", q.p75), ("p95", q.p95), ("p99", q.p99)];
+        let values = q.labelled();
         let spelled: Vec<String> = values.iter().map(|(p, v)| format!("{p} {}", decimal(*v))).collect();
         rows.push(("Quantiles", format!("{}{note}", spelled.join(" · "))));
     }
@@ -305,7 +315,12 @@ fn bar_chart(ui: &mut egui::Ui, id: &str, bars: &[(String, u64)], clickable: boo
 }
 
 /// Draws the top values; the value clicked (to see its rows), if any.
-fn top_values(ui: &mut egui::Ui, field: &FieldEntry, stats: &StatsEntry, top: &[crate::profile::top::TopValue]) -> Option<String> {
+fn top_values(
+    ui: &mut egui::Ui,
+    field: &FieldEntry,
+    stats: &StatsEntry,
+    top: &[crate::profile::top::TopValue],
+) -> Option<String> {
     let present = field.count - field.nulls - field.missing;
     let mut clicked = None;
     egui::Grid::new("top_values").num_columns(3).spacing([12.0, 3.0]).show(ui, |ui| {

@@ -101,7 +101,12 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
     if field.count > 0 && empty as f64 >= MOSTLY_EMPTY * field.count as f64 {
         out.push(Finding {
             kind: "mostly_empty",
-            message: format!("{} of places are null or missing ({} null, {} missing)", percent(empty, field.count), field.nulls(), field.missing),
+            message: format!(
+                "{} of places are null or missing ({} null, {} missing)",
+                percent(empty, field.count),
+                field.nulls(),
+                field.missing
+            ),
             examples: Vec::new(),
             behind: Behind::Empty,
         });
@@ -110,8 +115,12 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
         out.push(Finding {
             kind: "mixed_kinds",
             message: format!("values of more than one kind: {}", crate::shape::observed_label(&field.kinds)),
-            examples: field.minority_examples().iter().map(|(k, e)| format!("row {} ({}): {}", e.row, k.name(), e.value)).collect(),
-            behind: Behind::Rows(field.minority_examples().iter().map(|(_, e)| e.row).collect()),
+            examples: field
+                .minority_examples()
+                .iter()
+                .map(|(k, e)| format!("{} ({}): {}", e.place(), k.name(), e.value))
+                .collect(),
+            behind: Behind::Rows(field.minority_examples().iter().filter_map(|(_, e)| e.row).collect()),
         });
     }
     let strings = field.kinds.get(Kind::String);
@@ -129,7 +138,12 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
         if distinct.value == 1 && distinct.exact {
             let only: Vec<String> = stats.top.top(1).into_iter().map(|t| t.value).collect();
             let behind = Behind::Values(only.clone());
-            out.push(Finding { kind: "single_value", message: "every non-null value is the same".into(), examples: only, behind });
+            out.push(Finding {
+                kind: "single_value",
+                message: "every non-null value is the same".into(),
+                examples: only,
+                behind,
+            });
         }
         let unique = if distinct.exact {
             distinct.value == present
@@ -142,7 +156,10 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
             let about = if distinct.exact { "" } else { "about " };
             out.push(Finding {
                 kind: "unique_per_row",
-                message: format!("{about}every non-null value is different ({} values): a candidate key", distinct.value),
+                message: format!(
+                    "{about}every non-null value is different ({} values): a candidate key",
+                    distinct.value
+                ),
                 examples: Vec::new(),
                 behind: Behind::Nothing,
             });
@@ -154,8 +171,13 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
     if let Some(text) = &stats.text
         && text.padded > 0
     {
-        let padded: Vec<String> =
-            stats.top.entries().filter(|(v, _)| v.trim() != *v && !v.is_empty()).take(EXAMPLES).map(|(v, _)| v.to_string()).collect();
+        let padded: Vec<String> = stats
+            .top
+            .entries()
+            .filter(|(v, _)| v.trim() != *v && !v.is_empty())
+            .take(EXAMPLES)
+            .map(|(v, _)| v.to_string())
+            .collect();
         out.push(Finding {
             kind: "padded_text",
             message: format!("{} values have leading or trailing whitespace", text.padded),
@@ -174,7 +196,10 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
                 crate::time::rfc3339_from_unix(instants.max)
             ),
             examples: vec![crate::time::rfc3339_from_unix(instants.max)],
-            behind: Behind::During { start: crate::profile::field::profile_started() + 1, end: instants.max.saturating_add(1) },
+            behind: Behind::During {
+                start: crate::profile::field::profile_started() + 1,
+                end: instants.max.saturating_add(1),
+            },
         });
     }
     placeholders(stats, present, &mut out);
@@ -227,7 +252,8 @@ fn placeholders(stats: &crate::profile::field::FieldStats, present: u64, out: &m
     let mut found = Vec::new();
     for (value, count) in stats.top.entries() {
         let lower = value.to_lowercase();
-        let is_placeholder = PLACEHOLDERS.iter().any(|p| p.eq_ignore_ascii_case(&lower)) || value.starts_with("1970-01-01");
+        let is_placeholder =
+            PLACEHOLDERS.iter().any(|p| p.eq_ignore_ascii_case(&lower)) || value.starts_with("1970-01-01");
         if is_placeholder && count as f64 > PLACEHOLDER_SHARE * present as f64 {
             found.push((value.to_string(), count));
         }

@@ -52,7 +52,9 @@ pub fn escape(s: &str) -> String {
 /// (`report` then describes the later source).
 pub fn render(report: &Report, compared: Option<&Compared>) -> String {
     let mut out = String::new();
-    let name = std::path::Path::new(&report.source.path).file_name().map_or(report.source.path.clone(), |n| n.to_string_lossy().into_owned());
+    let name = std::path::Path::new(&report.source.path)
+        .file_name()
+        .map_or(report.source.path.clone(), |n| n.to_string_lossy().into_owned());
     let _ = write!(
         out,
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
@@ -78,7 +80,10 @@ fn facts(out: &mut String, report: &Report) {
     let s = &report.source;
     let rows = s.rows.map_or_else(|| "rows unknown".to_string(), |r| format!("{} rows", group_digits(r)));
     let size = s.bytes.map_or_else(|| "size unknown".to_string(), human_bytes);
-    let parts = s.parts.map_or_else(|| "parts unknown".to_string(), |p| format!("{} part{}", group_digits(p as u64), if p == 1 { "" } else { "s" }));
+    let parts = s.parts.map_or_else(
+        || "parts unknown".to_string(),
+        |p| format!("{} part{}", group_digits(p as u64), if p == 1 { "" } else { "s" }),
+    );
     let made_by = match &report.engine {
         Some(engine) => format!("computed by {} for Plumbline", escape(engine)),
         None => "made by Plumbline".to_string(),
@@ -94,16 +99,15 @@ fn facts(out: &mut String, report: &Report) {
         let _ = writeln!(out, "<p class=\"note\">Estimated: {}</p>", escape(note));
     }
     if let Some(note) = &report.coverage_note {
-        let _ = writeln!(out, "<p class=\"note\">{}: {}</p>", if report.partial { "PARTIAL" } else { "Note" }, escape(note));
-    }
-    if let Some(sample) = &report.sample {
         let _ = writeln!(
             out,
-            "<p class=\"note\">SAMPLED: a uniform sample of {} of the {} rows read (seed {}); every statistic describes the sample.</p>",
-            group_digits(sample.rows),
-            group_digits(sample.from_rows),
-            sample.seed
+            "<p class=\"note\">{}: {}</p>",
+            if report.partial { "PARTIAL" } else { "Note" },
+            escape(note)
         );
+    }
+    if let Some(sample) = &report.sample {
+        let _ = writeln!(out, "<p class=\"note\">SAMPLED: {}.</p>", escape(&sample.sampled().describe(sample.rows)));
     }
     out.push_str(if report.examples_included {
         "<p class=\"facts\">This report shows values from the data, which may be personal data.</p>\n"
@@ -125,7 +129,8 @@ fn tree(out: &mut String, report: &Report) {
             depth -= 1;
         }
         let marks = f.findings.as_ref().map_or(0, Vec::len);
-        let marker = if marks > 0 { format!(" · {marks} finding{}", if marks == 1 { "" } else { "s" }) } else { String::new() };
+        let marker =
+            if marks > 0 { format!(" · {marks} finding{}", if marks == 1 { "" } else { "s" }) } else { String::new() };
         let _ = writeln!(out, "<li><a href=\"#f{i}\">{}</a> {}{marker}</li>", escape(&f.name), escape(&short_type(f)));
     }
     while depth > 0 {
@@ -139,7 +144,9 @@ fn tree(out: &mut String, report: &Report) {
 fn short_type(f: &FieldEntry) -> String {
     let full = type_of(f);
     match full.split_once('(') {
-        Some((head, _)) if matches!(head, "Struct" | "List" | "LargeList" | "Map" | "FixedSizeList") => head.to_string(),
+        Some((head, _)) if matches!(head, "Struct" | "List" | "LargeList" | "Map" | "FixedSizeList") => {
+            head.to_string()
+        }
         _ => full,
     }
 }
@@ -195,7 +202,7 @@ fn field(out: &mut String, i: usize, f: &FieldEntry) {
             cells.push(("std", decimal(sd)));
         }
         if let Some(q) = &s.quantiles {
-            for (label, v) in [("p1", q.p1), ("p5", q.p5), ("p25", q.p25), ("p50", q.p50), ("p75", q.p75), ("p95", q.p95), ("p99", q.p99)] {
+            for (label, v) in q.labelled() {
                 cells.push((label, decimal(v)));
             }
         }
@@ -225,10 +232,22 @@ fn field(out: &mut String, i: usize, f: &FieldEntry) {
             top_values(out, top, f.count.saturating_sub(f.nulls + f.missing));
         }
         if let Some(l) = &s.lengths {
-            let _ = writeln!(out, "<p>Text length: {} to {} characters, mean {}.</p>", decimal(l.min), decimal(l.max), decimal(l.mean));
+            let _ = writeln!(
+                out,
+                "<p>Text length: {} to {} characters, mean {}.</p>",
+                decimal(l.min),
+                decimal(l.max),
+                decimal(l.mean)
+            );
         }
         if let Some(l) = &s.list_lengths {
-            let _ = writeln!(out, "<p>Elements per value: {} to {}, mean {}.</p>", decimal(l.min), decimal(l.max), decimal(l.mean));
+            let _ = writeln!(
+                out,
+                "<p>Elements per value: {} to {}, mean {}.</p>",
+                decimal(l.min),
+                decimal(l.max),
+                decimal(l.mean)
+            );
         }
     }
     if let Some(findings) = f.findings.as_ref().filter(|f| !f.is_empty()) {

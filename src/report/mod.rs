@@ -57,6 +57,22 @@ pub struct SampleSection {
     /// Rows read, from which the sample was drawn.
     pub from_rows: u64,
     pub seed: u64,
+    /// For a spread sample: how many pieces of the source were read, of how many.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pieces_read: Option<u64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pieces: Option<u64>,
+}
+
+impl SampleSection {
+    /// The sample as the scan describes it.
+    pub fn sampled(&self) -> crate::scan::Sampled {
+        let spread = match (self.pieces_read, self.pieces) {
+            (Some(pieces_read), Some(pieces)) => Some(crate::scan::Spread { pieces_read, pieces }),
+            _ => None,
+        };
+        crate::scan::Sampled { from_rows: self.from_rows, seed: self.seed, spread }
+    }
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -193,10 +209,26 @@ pub struct Quantiles {
     pub p99: f64,
 }
 
+impl Quantiles {
+    /// Each quantile with its report name, lowest first.
+    pub fn labelled(&self) -> [(&'static str, f64); 7] {
+        [
+            ("p1", self.p1),
+            ("p5", self.p5),
+            ("p25", self.p25),
+            ("p50", self.p50),
+            ("p75", self.p75),
+            ("p95", self.p95),
+            ("p99", self.p99),
+        ]
+    }
+}
+
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct ExampleEntry {
     pub kind: String,
-    pub row: u64,
+    /// `null` when the example's row was not counted (a spread sample of a text file).
+    pub row: Option<u64>,
     pub value: String,
 }
 
@@ -215,7 +247,13 @@ pub fn build(scan: &Scan, options: ReportOptions) -> Report {
         coverage_note: scan.coverage.describe(),
         shape_only: matches!(scan.coverage, crate::scan::Coverage::SchemaOnly | crate::scan::Coverage::FirstRows(_)),
         sampled: scan.sample.is_some(),
-        sample: scan.sample.map(|s| SampleSection { rows: scan.shape.rows, from_rows: s.from_rows, seed: s.seed }),
+        sample: scan.sample.map(|s| SampleSection {
+            rows: scan.shape.rows,
+            from_rows: s.from_rows,
+            seed: s.seed,
+            pieces_read: s.spread.map(|p| p.pieces_read),
+            pieces: s.spread.map(|p| p.pieces),
+        }),
         examples_included: !options.no_examples,
         engine: scan.from_report.as_ref().and_then(|r| r.engine.clone()),
         approximations: scan.from_report.as_ref().map(|r| r.approximations.clone()).unwrap_or_default(),
@@ -314,10 +352,9 @@ fn stats_entry(f: &FieldShape, stats: &crate::profile::field::FieldStats, option
         earliest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.min)),
         latest: stats.instants.as_ref().map(|i| crate::time::rfc3339_from_unix(i.max)),
         future_share: stats.instants.as_ref().map(|i| i.future as f64 / i.count.max(1) as f64),
-        calendar: stats
-            .instants
-            .as_ref()
-            .and_then(|i| if i.seconds.is_reported() { i.calendar.clone() } else { crate::profile::calendar::histogram(&i.seconds) }),
+        calendar: stats.instants.as_ref().and_then(|i| {
+            if i.seconds.is_reported() { i.calendar.clone() } else { crate::profile::calendar::histogram(&i.seconds) }
+        }),
         nan: stats.numbers.as_ref().map(|n| n.nan).filter(|&n| n > 0),
         infinite: stats.numbers.as_ref().map(|n| n.pos_inf + n.neg_inf).filter(|&n| n > 0),
     }

@@ -54,13 +54,15 @@ pub fn read(path: &Path) -> Result<Scan, SourceError> {
         }
         Some(_) => {}
     }
-    let report: Report = serde_json::from_str(&text).map_err(|e| bad(format!("not a report as Plumbline writes one: {e}")))?;
+    let report: Report =
+        serde_json::from_str(&text).map_err(|e| bad(format!("not a report as Plumbline writes one: {e}")))?;
     scan_of(&report, path).map_err(bad)
 }
 
 fn scan_of(report: &Report, file: &Path) -> Result<Scan, String> {
     let s = &report.source;
-    let format = Format::from_label(&s.format).ok_or_else(|| format!("source format {:?} is not one Plumbline reads", s.format))?;
+    let format = Format::from_label(&s.format)
+        .ok_or_else(|| format!("source format {:?} is not one Plumbline reads", s.format))?;
     let info = SourceInfo {
         path: PathBuf::from(&s.path),
         format,
@@ -78,11 +80,12 @@ fn scan_of(report: &Report, file: &Path) -> Result<Scan, String> {
     let coverage = match (report.shape_only, report.partial) {
         (true, false) => Coverage::SchemaOnly,
         (true, true) => Coverage::FirstRows(s.rows.unwrap_or(0)),
-        (false, true) => Coverage::PartialReport(report.coverage_note.clone().unwrap_or_else(|| "the report says it is partial".into())),
+        (false, true) => Coverage::PartialReport(
+            report.coverage_note.clone().unwrap_or_else(|| "the report says it is partial".into()),
+        ),
         (false, false) => Coverage::Full,
     };
-    let sample =
-        report.sample.as_ref().map(|x| crate::scan::Sampled { from_rows: x.from_rows, seed: x.seed });
+    let sample = report.sample.as_ref().map(|x| x.sampled());
     Ok(Scan {
         info,
         shape: Shape { rows: s.rows.unwrap_or(0), fields: root.children },
@@ -126,9 +129,14 @@ fn fill(parent: &mut FieldShape, entries: &[FieldEntry], next: &mut usize, depth
 
 fn set_field(node: &mut FieldShape, e: &FieldEntry) -> Result<(), String> {
     if let Some(arrow) = &e.declared_type {
-        let data_type = arrow_schema::DataType::from_str(arrow).map_err(|_| format!("declared type {arrow:?} is not an Arrow type"))?;
-        node.declared =
-            Some(Declared { arrow: arrow.clone(), data_type, nullable: e.declared_nullable.unwrap_or(true), parquet: e.parquet.clone() });
+        let data_type = arrow_schema::DataType::from_str(arrow)
+            .map_err(|_| format!("declared type {arrow:?} is not an Arrow type"))?;
+        node.declared = Some(Declared {
+            arrow: arrow.clone(),
+            data_type,
+            nullable: e.declared_nullable.unwrap_or(true),
+            parquet: e.parquet.clone(),
+        });
     }
     for (name, &n) in &e.kinds {
         let kind = Kind::from_name(name).ok_or_else(|| format!("unknown kind {name:?}"))?;
@@ -171,14 +179,20 @@ fn as_i128(v: &serde_json::Value) -> Option<i128> {
 
 /// A shape-only report's fields carry no statistics at all.
 fn is_empty(s: &StatsEntry) -> bool {
-    s.distinct.is_none() && s.mean.is_none() && s.top_exact.is_none() && s.lengths.is_none() && s.list_lengths.is_none() && s.earliest.is_none()
+    s.distinct.is_none()
+        && s.mean.is_none()
+        && s.top_exact.is_none()
+        && s.lengths.is_none()
+        && s.list_lengths.is_none()
+        && s.earliest.is_none()
 }
 
 fn stats_of(node: &FieldShape, s: &StatsEntry) -> FieldStats {
     let mut stats = FieldStats::default();
     if let Some(value) = s.distinct {
         let exact = s.distinct_exact.unwrap_or(false);
-        stats.distinct = Distinct::reported(DistinctCount { value, exact, standard_error: s.distinct_error.unwrap_or(0.0) });
+        stats.distinct =
+            Distinct::reported(DistinctCount { value, exact, standard_error: s.distinct_error.unwrap_or(0.0) });
     }
     let (nan, infinite) = (s.nan.unwrap_or(0), s.infinite.unwrap_or(0));
     if let Some(mean) = s.mean {
@@ -192,7 +206,10 @@ fn stats_of(node: &FieldShape, s: &StatsEntry) -> FieldStats {
             rank_error: s.quantiles_rank_error,
         });
         let every_value = every_value(s, count);
-        stats.numbers = Some(NumberStats::from_report(moments, Reported { quantiles, histogram: s.histogram.clone(), nan, infinite, every_value }));
+        stats.numbers = Some(NumberStats::from_report(
+            moments,
+            Reported { quantiles, histogram: s.histogram.clone(), nan, infinite, every_value },
+        ));
     }
     if let Some(top) = &s.top {
         let present = node.kinds.non_null();
@@ -200,7 +217,11 @@ fn stats_of(node: &FieldShape, s: &StatsEntry) -> FieldStats {
     }
     if let Some(l) = &s.lengths {
         let strings = node.kinds.get(Kind::String);
-        stats.text = Some(TextStats { lengths: lengths_of(l, strings), empty: s.empty.unwrap_or(0), padded: s.padded.unwrap_or(0) });
+        stats.text = Some(TextStats {
+            lengths: lengths_of(l, strings),
+            empty: s.empty.unwrap_or(0),
+            padded: s.padded.unwrap_or(0),
+        });
     }
     if let Some(l) = &s.list_lengths {
         stats.list_lengths = Some(lengths_of(l, node.kinds.get(Kind::Array) + node.kinds.get(Kind::Map)));
@@ -226,7 +247,8 @@ fn stats_of(node: &FieldShape, s: &StatsEntry) -> FieldStats {
 /// every one of the `count` (a field of few distinct numbers).
 fn every_value(s: &StatsEntry, count: u64) -> Vec<(f64, u64)> {
     let Some(top) = s.top.as_ref().filter(|_| s.top_exact == Some(true)) else { return Vec::new() };
-    let parsed: Option<Vec<(f64, u64)>> = top.iter().map(|t| t.value.parse::<f64>().ok().filter(|v| v.is_finite()).map(|v| (v, t.count))).collect();
+    let parsed: Option<Vec<(f64, u64)>> =
+        top.iter().map(|t| t.value.parse::<f64>().ok().filter(|v| v.is_finite()).map(|v| (v, t.count))).collect();
     match parsed {
         Some(values) if values.iter().map(|v| v.1).sum::<u64>() == count => values,
         _ => Vec::new(),

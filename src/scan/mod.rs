@@ -7,6 +7,7 @@ use std::sync::atomic::{AtomicBool, Ordering};
 
 mod parts;
 mod sample;
+pub mod spread;
 
 use crate::shape::{Shape, ShapeBuilder};
 use crate::source::{self, OpenOptions, Progress, Source, SourceError, SourceInfo};
@@ -66,6 +67,9 @@ impl ScanOptions {
 pub struct SampleOptions {
     pub rows: usize,
     pub seed: u64,
+    /// Draw from every row, even where a spread sample (see [`spread`])
+    /// would read only pieces of the source.
+    pub every_row: bool,
 }
 
 /// How a sampled Shape was drawn.
@@ -74,17 +78,38 @@ pub struct Sampled {
     /// Rows the sample was drawn from (every row read).
     pub from_rows: u64,
     pub seed: u64,
+    /// Set when only some pieces of the source were read.
+    pub spread: Option<Spread>,
+}
+
+/// The pieces a spread sample read.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Spread {
+    pub pieces_read: u64,
+    pub pieces: u64,
 }
 
 impl Sampled {
     /// A sentence for people about a sample of `rows` rows.
     pub fn describe(&self, rows: u64) -> String {
-        format!(
-            "a uniform sample of {} of the {} rows read (seed {}); statistics describe the sample",
-            crate::format::group_digits(rows),
-            crate::format::group_digits(self.from_rows),
-            self.seed
-        )
+        use crate::format::group_digits;
+        match self.spread {
+            None => format!(
+                "a uniform sample of {} of the {} rows read (seed {}); statistics describe the sample",
+                group_digits(rows),
+                group_digits(self.from_rows),
+                self.seed
+            ),
+            Some(spread) => format!(
+                "a spread sample of {} rows, drawn uniformly from the {} rows in {} of the source's {} pieces, \
+                 picked at random (seed {}); the other pieces were not read, and statistics describe the sample",
+                group_digits(rows),
+                group_digits(self.from_rows),
+                group_digits(spread.pieces_read),
+                group_digits(spread.pieces),
+                self.seed
+            ),
+        }
     }
 }
 
@@ -118,9 +143,10 @@ impl Coverage {
             Coverage::Full => None,
             Coverage::SchemaOnly => Some("schema and metadata only; no rows were read".into()),
             Coverage::FirstRows(n) => Some(format!("inferred from the first {n} rows only")),
-            Coverage::FirstLook(n) => {
-                Some(format!("a first look: the first {} rows only; the rest of the source was not read", crate::format::group_digits(*n)))
-            }
+            Coverage::FirstLook(n) => Some(format!(
+                "a first look: the first {} rows only; the rest of the source was not read",
+                crate::format::group_digits(*n)
+            )),
             Coverage::Stopped(n) => Some(format!("stopped by the user after {n} rows")),
             Coverage::Broken { rows, error } => Some(format!("the source broke after {rows} rows: {error}")),
             Coverage::PartialReport(note) => Some(note.clone()),
@@ -183,6 +209,11 @@ pub fn scan_source(
     }
     let reads_all = !options.shape_only && !options.first_look;
     if reads_all && let Some(sample) = options.sample {
+        if !sample.every_row
+            && let Some(pieces) = spread::plan(source, sample)
+        {
+            return spread::scan_spread(info, pieces, sample, options.profiles(), stop, progress);
+        }
         return sample::scan_sample(source, info, sample, options.profiles(), stop, progress);
     }
     if reads_all && let Some(parts) = source.split() {
@@ -243,7 +274,6 @@ fn truncate_batch(batch: source::Batch, keep: usize) -> source::Batch {
     }
 }
 
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -294,5 +324,135 @@ mod tests {
         assert_eq!(first_look_rows(&info(3)), FIRST_LOOK_ROWS);
         assert_eq!(first_look_rows(&info(2_000)), 1_000);
         assert_eq!(first_look_rows(&info(1_000_000)), FIRST_LOOK_MIN_ROWS);
+    }
+
+    fn spread(rows: usize, seed: u64, every_row: bool) -> ScanOptions {
+        ScanOptions { sample: Some(SampleOptions { rows, seed, every_row }), ..Default::default() }
+    }
+
+    /// Lines whose `even` is a string every tenth row (a mixed kind).
+    fn mixed_lines(dir: &Path, n: usize) -> std::path::PathBuf {
+        let path = dir.join("mixed.jsonl");
+        let text: String = (0..n)
+            .map(|i| {
+                if i % 10 == 3 {
+                    format!("{{\"id\":{i},\"even\":\"odd\"}}\n")
+                } else {
+                    format!("{{\"id\":{i},\"even\":{}}}\n", i % 2 == 0)
+                }
+            })
+            .collect();
+        std::fs::write(&path, text).unwrap();
+        path
+    }
+
+    #[test]
+    fn a_spread_sample_reads_pieces_from_all_over_a_large_file_and_says_so() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = mixed_lines(dir.path(), 200_000);
+        let scan = scan_file(&path, spread(1_000, 5, false));
+        assert_eq!((scan.coverage.clone(), scan.shape.rows), (Coverage::Full, 1_000));
+        let sample = scan.sample.expect("sampled");
+        let pieces = sample.spread.expect("a spread sample");
+        assert!(pieces.pieces_read * 10 < pieces.pieces, "{pieces:?}");
+        let wanted = 1_000 * spread::READ_FACTOR;
+        assert!((wanted..wanted + 1_000).contains(&sample.from_rows), "read {} rows", sample.from_rows);
+        let id = &scan.shape.find("id").unwrap().stats.as_ref().unwrap().numbers.as_ref().unwrap().moments;
+        assert!(
+            id.max().unwrap() - id.min().unwrap() > 100_000.0,
+            "rows from all over: {:?}..{:?}",
+            id.min(),
+            id.max()
+        );
+        // The lines before a piece were never counted: its examples name no row.
+        let even = scan.shape.find("even").unwrap();
+        let examples = even.minority_examples();
+        assert!(!examples.is_empty() && examples.iter().any(|(_, e)| e.row.is_none()), "{examples:?}");
+        assert!(sample.describe(1_000).contains("a spread sample of 1,000 rows"), "{}", sample.describe(1_000));
+        // The same seed draws the same sample.
+        let again = scan_file(&path, spread(1_000, 5, false));
+        assert_eq!(again.shape, scan.shape);
+    }
+
+    #[test]
+    fn a_sample_from_every_row_reads_the_whole_file() {
+        let dir = tempfile::tempdir().unwrap();
+        let scan = scan_file(&mixed_lines(dir.path(), 200_000), spread(100, 5, true));
+        let sample = scan.sample.expect("sampled");
+        assert_eq!((sample.from_rows, sample.spread), (200_000, None));
+        let examples =
+            scan.shape.find("even").unwrap().minority_examples().into_iter().map(|(_, e)| e.row).collect::<Vec<_>>();
+        assert!(!examples.is_empty() && examples.iter().all(|r| r.is_some_and(|r| r % 10 == 3)), "{examples:?}");
+    }
+
+    #[test]
+    fn a_source_too_small_to_spread_is_sampled_from_every_row() {
+        let dir = tempfile::tempdir().unwrap();
+        // 3,000 rows hold fewer than 16 times the 4 × 100 rows a spread would read.
+        let scan = scan_file(&mixed_lines(dir.path(), 3_000), spread(100, 5, false));
+        let sample = scan.sample.expect("sampled");
+        assert_eq!((sample.from_rows, sample.spread), (3_000, None));
+    }
+
+    /// Every piece of `path` in order: the `id`s it holds, and the row it says it starts at.
+    fn pieces_of(path: &Path, rows: u64) -> Vec<(Vec<i64>, Option<u64>)> {
+        use arrow_array::Array;
+        let mut source = source::open(path, OpenOptions::default()).unwrap();
+        let pieces = source.pieces(rows).expect("pieces");
+        (0..pieces.count())
+            .map(|i| {
+                let (mut piece, first) = pieces.piece(i).unwrap();
+                let mut ids = Vec::new();
+                while let Some(batch) = piece.next_batch().unwrap() {
+                    let source::Batch::Arrow(b) = batch else { panic!("Parquet gives Arrow batches") };
+                    let column = b.column_by_name("id").unwrap();
+                    let column = column.as_any().downcast_ref::<arrow_array::Int64Array>().unwrap();
+                    ids.extend((0..column.len()).map(|r| column.value(r)));
+                }
+                (ids, first)
+            })
+            .collect()
+    }
+
+    fn parquet_of_ids(path: &Path, ids: std::ops::Range<i64>, group_rows: usize) {
+        let batch = arrow_array::RecordBatch::try_from_iter([(
+            "id",
+            std::sync::Arc::new(arrow_array::Int64Array::from_iter_values(ids)) as arrow_array::ArrayRef,
+        )])
+        .unwrap();
+        let props = parquet::file::properties::WriterProperties::builder()
+            .set_max_row_group_row_count(Some(group_rows))
+            .build();
+        let file = std::fs::File::create(path).unwrap();
+        let mut writer = parquet::arrow::ArrowWriter::try_new(file, batch.schema(), Some(props)).unwrap();
+        writer.write(&batch).unwrap();
+        writer.close().unwrap();
+    }
+
+    #[test]
+    fn parquet_pieces_are_row_ranges_within_row_groups_that_know_their_first_row() {
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("ids.parquet");
+        parquet_of_ids(&path, 0..2_500, 1_000);
+        let pieces = pieces_of(&path, 300);
+        // Each row group of 1,000 rows gives 4 pieces (300, 300, 300, 100); the last of 500, 2.
+        assert_eq!(pieces.len(), 4 + 4 + 2);
+        for (ids, first) in &pieces {
+            assert_eq!(Some(ids[0] as u64), *first);
+            assert!(ids.len() <= 300);
+        }
+        let all: Vec<i64> = pieces.into_iter().flat_map(|(ids, _)| ids).collect();
+        assert_eq!(all, (0..2_500).collect::<Vec<_>>());
+    }
+
+    #[test]
+    fn directory_pieces_are_its_parts_and_know_their_first_row_when_parts_state_their_rows() {
+        let dir = tempfile::tempdir().unwrap();
+        parquet_of_ids(&dir.path().join("a.parquet"), 0..70, 1_000);
+        parquet_of_ids(&dir.path().join("b.parquet"), 70..100, 1_000);
+        let pieces = pieces_of(dir.path(), 300);
+        let firsts: Vec<Option<u64>> = pieces.iter().map(|(_, first)| *first).collect();
+        assert_eq!(firsts, [Some(0), Some(70)]);
+        assert_eq!(pieces[1].0[0], 70);
     }
 }

@@ -17,7 +17,7 @@ pub(super) fn scan_sample(
     progress: &mut dyn FnMut(Progress),
 ) -> Scan {
     let mut kept = KeptRows::new(options.rows, options.seed, info.path.clone());
-    let mut coverage = loop {
+    let coverage = loop {
         if stop.load(Ordering::Relaxed) {
             break Coverage::Stopped(kept.seen());
         }
@@ -33,7 +33,22 @@ pub(super) fn scan_sample(
         progress(source.progress());
     };
     let from_rows = kept.seen();
-    let mut builder = ShapeBuilder::new(&info, profile);
+    let (shape, coverage) = observe_kept(kept, &info, profile, coverage, Some);
+    let sample = (from_rows > shape.rows).then_some(Sampled { from_rows, seed: options.seed, spread: None });
+    Scan { info, shape, coverage, sample, from_report: None }
+}
+
+/// Observes the rows a reservoir kept, in the order they were read; each
+/// example names the source row `source_row` gives for its stream row.
+pub(super) fn observe_kept(
+    kept: KeptRows,
+    info: &SourceInfo,
+    profile: bool,
+    mut coverage: Coverage,
+    source_row: impl Fn(u64) -> Option<u64>,
+) -> (crate::shape::Shape, Coverage) {
+    let from_rows = kept.seen();
+    let mut builder = ShapeBuilder::new(info, profile);
     let mut stream_rows = Vec::new();
     match kept.finish() {
         Ok(batches) => {
@@ -47,8 +62,8 @@ pub(super) fn scan_sample(
         }
         Err(e) => coverage = Coverage::Broken { rows: from_rows, error: e.to_string() },
     }
-    // Examples name the row of the file, not of the sample.
-    builder.renumber_examples(&stream_rows);
-    let sample = (from_rows > builder.rows()).then_some(Sampled { from_rows, seed: options.seed });
-    Scan { info, shape: builder.finish(), coverage, sample, from_report: None }
+    // Examples name the row of the source, not of the sample.
+    let rows: Vec<Option<u64>> = stream_rows.into_iter().map(source_row).collect();
+    builder.renumber_examples(&rows);
+    (builder.finish(), coverage)
 }

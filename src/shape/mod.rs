@@ -47,10 +47,21 @@ pub enum Role {
 /// A value seen in the data, kept to show what a kind looks like.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize)]
 pub struct Example {
-    /// 0-based row number in the source.
-    pub row: u64,
+    /// 0-based row number in the source; `None` when the rows before the
+    /// one it came from were never counted (a spread sample of a text file).
+    pub row: Option<u64>,
     /// The value as compact text, cut to [`EXAMPLE_CHARS`].
     pub value: String,
+}
+
+impl Example {
+    /// Where the example came from, for people: `row 12` or `an uncounted row`.
+    pub fn place(&self) -> String {
+        match self.row {
+            Some(row) => format!("row {}", crate::format::group_digits(row)),
+            None => "an uncounted row".to_string(),
+        }
+    }
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -163,7 +174,7 @@ impl FieldShape {
     pub(crate) fn note_example(&mut self, kind: Kind, row: u64, render: impl FnOnce() -> String) {
         let list = self.examples.entry(kind).or_default();
         if list.len() < EXAMPLES_PER_KIND {
-            list.push(Example { row, value: render() });
+            list.push(Example { row: Some(row), value: render() });
         }
     }
 
@@ -458,8 +469,8 @@ impl ShapeBuilder {
                 f.first_row += offset;
             }
             for list in f.examples.values_mut() {
-                for e in list {
-                    e.row += offset;
+                for row in list.iter_mut().filter_map(|e| e.row.as_mut()) {
+                    *row += offset;
                 }
             }
         });
@@ -469,12 +480,12 @@ impl ShapeBuilder {
     }
 
     /// Replaces each example's row number `i` with `rows[i]` (for a sample,
-    /// whose row `i` is row `rows[i]` of the source).
-    pub fn renumber_examples(&mut self, rows: &[u64]) {
+    /// whose row `i` is row `rows[i]` of the source, or of no counted row).
+    pub fn renumber_examples(&mut self, rows: &[Option<u64>]) {
         self.root.walk_mut(&mut |f| {
             for list in f.examples.values_mut() {
                 for e in list {
-                    if let Some(&row) = rows.get(e.row as usize) {
+                    if let Some(&row) = e.row.and_then(|i| rows.get(i as usize)) {
                         e.row = row;
                     }
                 }
@@ -539,9 +550,10 @@ mod tests {
         assert_eq!(a.kinds.unified(), Unified::Mixed);
         let examples = a.minority_examples();
         assert_eq!(examples.len(), 1, "the minority kind only: {examples:?}");
-        assert_eq!(examples[0].1.row, 2);
+        assert_eq!(examples[0].1.row, Some(2));
         let mut wide = ShapeBuilder::empty(false);
-        let mixed_numbers = vec![row(&[("n", Value::Float(1.5))]), row(&[("n", Value::BigInt("99999999999999999999".into()))])];
+        let mixed_numbers =
+            vec![row(&[("n", Value::Float(1.5))]), row(&[("n", Value::BigInt("99999999999999999999".into()))])];
         wide.add(&Batch::Rows(mixed_numbers)).unwrap();
         let n = wide.finish();
         assert_eq!(observed_label(&n.find("n").unwrap().kinds), "float (lossy: wide integers met floats)");
@@ -553,8 +565,9 @@ mod tests {
     /// A batch of `columns` int64 columns, each holding 0..rows.
     fn wide_batch(columns: usize, rows: i64) -> Batch {
         use std::sync::Arc;
-        let fields: Vec<arrow_schema::Field> =
-            (0..columns).map(|i| arrow_schema::Field::new(format!("c{i}"), arrow_schema::DataType::Int64, false)).collect();
+        let fields: Vec<arrow_schema::Field> = (0..columns)
+            .map(|i| arrow_schema::Field::new(format!("c{i}"), arrow_schema::DataType::Int64, false))
+            .collect();
         let arrays: Vec<arrow_array::ArrayRef> =
             (0..columns).map(|_| Arc::new(arrow_array::Int64Array::from_iter_values(0..rows)) as _).collect();
         Batch::Arrow(arrow_array::RecordBatch::try_new(Arc::new(arrow_schema::Schema::new(fields)), arrays).unwrap())
@@ -567,7 +580,8 @@ mod tests {
             b.add(&wide_batch(columns, 5_000)).unwrap();
             let shape = b.finish();
             let stats = shape.find("c0").unwrap().stats.as_ref().unwrap().distinct_count().unwrap();
-            let quantiles_exact = shape.find("c0").unwrap().stats.as_ref().unwrap().numbers.as_ref().unwrap().is_exact();
+            let quantiles_exact =
+                shape.find("c0").unwrap().stats.as_ref().unwrap().numbers.as_ref().unwrap().is_exact();
             (stats.exact, quantiles_exact)
         };
         // 10 columns: the full budget (100,000 distinct, 10,000 values).
@@ -575,5 +589,4 @@ mod tests {
         // 600 columns: 2,000,000 / 600 = 3,333 distinct and values each, below 5,000.
         assert_eq!(distinct(600), (false, false));
     }
-
 }

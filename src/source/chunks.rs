@@ -30,28 +30,36 @@ pub const CHUNK_BYTES: u64 = 32 * 1024 * 1024;
 pub fn line_starts(path: &Path, from: u64, to: u64, target: u64) -> Result<Vec<u64>, SourceError> {
     let mut file = File::open(path).map_err(|e| SourceError::io(path, e))?;
     let mut starts = vec![from];
-    let mut buf = vec![0u8; 64 * 1024];
     loop {
         let guess = starts.last().expect("starts is never empty") + target.max(1);
         if guess >= to {
             return Ok(starts);
         }
-        file.seek(SeekFrom::Start(guess - 1)).map_err(|e| SourceError::io(path, e))?;
-        let mut at = guess - 1;
-        let next = loop {
-            let n = file.read(&mut buf).map_err(|e| SourceError::io(path, e))?;
-            if n == 0 {
-                break None;
-            }
-            if let Some(i) = memchr::memchr(b'\n', &buf[..n]) {
-                break Some(at + i as u64 + 1);
-            }
-            at += n as u64;
-        };
-        match next {
+        match next_line_start(&mut file, path, guess)? {
             Some(start) if start < to => starts.push(start),
             _ => return Ok(starts),
         }
+    }
+}
+
+/// The first line start at or after byte `at` (`at` itself when the byte
+/// before it is a line break), or `None` past the last line break.
+pub fn next_line_start(file: &mut File, path: &Path, at: u64) -> Result<Option<u64>, SourceError> {
+    if at == 0 {
+        return Ok(Some(0));
+    }
+    file.seek(SeekFrom::Start(at - 1)).map_err(|e| SourceError::io(path, e))?;
+    let mut buf = vec![0u8; 64 * 1024];
+    let mut offset = at - 1;
+    loop {
+        let n = file.read(&mut buf).map_err(|e| SourceError::io(path, e))?;
+        if n == 0 {
+            return Ok(None);
+        }
+        if let Some(i) = memchr::memchr(b'\n', &buf[..n]) {
+            return Ok(Some(offset + i as u64 + 1));
+        }
+        offset += n as u64;
     }
 }
 

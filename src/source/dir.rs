@@ -24,6 +24,8 @@ const NULL_PARTITION: &str = "__HIVE_DEFAULT_PARTITION__";
 struct Part {
     path: PathBuf,
     bytes: u64,
+    /// Rows when the part states them (Parquet and Arrow footers).
+    rows: Option<u64>,
     /// `key=value` segments between the directory and the file.
     partitions: Vec<(String, Option<String>)>,
 }
@@ -89,8 +91,9 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
         } else {
             schemas.push((file.clone(), None, None));
         }
+        let rows = schemas.last().and_then(|(_, _, rows)| *rows);
         let partitions = partition_segments(dir, &file);
-        parts.push(Part { path: file, bytes: file_bytes, partitions });
+        parts.push(Part { path: file, bytes: file_bytes, rows, partitions });
     }
     let (format, _) = format.expect("at least one part");
     let partition_fields = partition_fields(&parts);
@@ -318,6 +321,38 @@ fn add_partitions(partition_fields: &[PartitionField], part: &Part, batch: Batch
 }
 
 /// One part file read on its own, with its partition fields.
+fn open_part(
+    part: Part,
+    partition_fields: Arc<Vec<PartitionField>>,
+    options: OpenOptions,
+) -> Result<Box<dyn Source>, SourceError> {
+    let inner = open_file(&part.path, options)?;
+    Ok(Box::new(PartSource { inner, part, partition_fields }))
+}
+
+/// A directory's part files as the pieces of a spread sample.
+struct PartPieces {
+    parts: Vec<Part>,
+    partition_fields: Arc<Vec<PartitionField>>,
+    options: OpenOptions,
+    estimated_rows: u64,
+}
+
+impl super::Pieces for PartPieces {
+    fn count(&self) -> usize {
+        self.parts.len()
+    }
+
+    fn estimated_rows(&self) -> u64 {
+        self.estimated_rows
+    }
+
+    fn piece(&self, i: usize) -> Result<(Box<dyn Source>, Option<u64>), SourceError> {
+        let rows_before: Option<u64> = self.parts[..i].iter().map(|p| p.rows).sum();
+        Ok((open_part(self.parts[i].clone(), self.partition_fields.clone(), self.options)?, rows_before))
+    }
+}
+
 struct PartSource {
     inner: Box<dyn Source>,
     part: Part,
@@ -362,12 +397,26 @@ impl Source for DirSource {
         let parts = self.parts.iter().map(|part| {
             let info = SourceInfo { path: part.path.clone(), bytes: part.bytes, parts: 1, ..self.info.clone() };
             let (part, partition_fields, options) = (part.clone(), self.partition_fields.clone(), self.options);
-            Box::new(LazyPart::new(info, move || {
-                let inner = open_file(&part.path, options)?;
-                Ok(Box::new(PartSource { inner, part, partition_fields }) as Box<dyn Source>)
-            })) as Box<dyn Source>
+            Box::new(LazyPart::new(info, move || open_part(part, partition_fields, options))) as Box<dyn Source>
         });
         Some(parts.collect())
+    }
+
+    /// Whole part files are the pieces: a part is read alone anyway.
+    fn pieces(&mut self, _rows: u64) -> Option<Box<dyn super::Pieces>> {
+        if self.next_part != 0 || self.current.is_some() {
+            return None;
+        }
+        let estimated_rows = match self.info.rows {
+            Some(rows) => rows,
+            None => self.info.bytes / super::pieces::estimate_line_bytes(&self.parts.first()?.path).ok()?,
+        };
+        Some(Box::new(PartPieces {
+            parts: self.parts.clone(),
+            partition_fields: self.partition_fields.clone(),
+            options: self.options,
+            estimated_rows,
+        }))
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {

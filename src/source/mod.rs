@@ -20,6 +20,7 @@ pub mod json;
 pub mod lazy;
 pub mod limits;
 pub mod parquet;
+pub mod pieces;
 
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
@@ -115,6 +116,25 @@ pub trait Source: Send {
     fn place_error(&self, e: SourceError) -> SourceError {
         e
     }
+    /// The source cut into pieces of about `rows` rows each, any one of
+    /// which can be read alone, for a spread sample; `None` when the format
+    /// cannot be cut so (compressed streams, CSV, whose line breaks may sit
+    /// inside quotes) or the source has started reading.
+    fn pieces(&mut self, _rows: u64) -> Option<Box<dyn Pieces>> {
+        None
+    }
+}
+
+/// A source cut into many small pieces for a spread sample: reading a few
+/// pieces picked at random touches only those places of the file.
+pub trait Pieces: Send {
+    /// How many pieces there are.
+    fn count(&self) -> usize;
+    /// About how many rows the whole source holds (exact when stated).
+    fn estimated_rows(&self) -> u64;
+    /// Piece `i` (of [`Pieces::count`]) as a source of its own, with the
+    /// source row its first row is, when the rows before it are known.
+    fn piece(&self, i: usize) -> Result<(Box<dyn Source>, Option<u64>), SourceError>;
 }
 
 /// Where a part of a split text file begins and where its reading ended

@@ -46,6 +46,9 @@ pub struct ParquetSource {
     /// Columns encrypted under a plaintext footer: the schema is readable,
     /// the data is not.
     encrypted_columns: bool,
+    /// Only rows `from..to` of the one row group read (a piece of a spread
+    /// sample); `None` reads whole row groups.
+    rows_in_group: Option<(u64, u64)>,
 }
 
 /// The row group being read, and how many rows it has given so far.
@@ -97,6 +100,7 @@ impl ParquetSource {
             rows_done: 0,
             failed: false,
             encrypted_columns,
+            rows_in_group: None,
         })
     }
 
@@ -287,22 +291,27 @@ impl ParquetSource {
             self.metadata.clone()
         };
         let total = self.metadata.metadata().row_group(group).num_rows().max(0) as usize;
+        let (from, to) = self.rows_in_group.map_or((0, total), |(from, to)| (from as usize, to as usize));
+        let from = from.max(skip as usize);
         let batch_rows = if large_offsets { 16 } else { ARROW_BATCH_ROWS };
         let built = guard::catch(move || {
             let mut builder = ParquetRecordBatchReaderBuilder::new_with_metadata(file, metadata)
                 .with_row_groups(vec![group])
                 .with_batch_size(batch_rows);
-            if skip > 0 {
-                let skip = skip as usize;
-                builder = builder.with_row_selection(RowSelection::from(vec![
-                    RowSelector::skip(skip),
-                    RowSelector::select(total.saturating_sub(skip)),
-                ]));
+            if from > 0 || to < total {
+                let selectors = [
+                    RowSelector::skip(from),
+                    RowSelector::select(to.saturating_sub(from)),
+                    RowSelector::skip(total.saturating_sub(to)),
+                ];
+                builder = builder.with_row_selection(RowSelection::from(
+                    selectors.into_iter().filter(|s| s.row_count > 0).collect::<Vec<_>>(),
+                ));
             }
             builder.build()
         });
         match built {
-            Ok(Ok(reader)) => Ok(GroupReader { group, reader, rows: skip, large_offsets }),
+            Ok(Ok(reader)) => Ok(GroupReader { group, reader, rows: from as u64, large_offsets }),
             Ok(Err(e)) => Err(e.to_string()),
             Err(panic) => Err(panic),
         }
@@ -370,10 +379,37 @@ impl Source for ParquetSource {
                     rows_done: 0,
                     failed: false,
                     encrypted_columns,
+                    rows_in_group: None,
                 }) as Box<dyn Source>)
             })));
         }
         Some(parts)
+    }
+
+    fn pieces(&mut self, rows: u64) -> Option<Box<dyn super::Pieces>> {
+        if self.next_group != 0 || self.current.is_some() || self.rows_in_group.is_some() {
+            return None;
+        }
+        let mut first_piece = Vec::with_capacity(self.end_group);
+        let mut first_row = Vec::with_capacity(self.end_group);
+        let (mut pieces, mut rows_before) = (0, 0);
+        for group in 0..self.end_group {
+            first_piece.push(pieces);
+            first_row.push(rows_before);
+            let group_rows = self.metadata.metadata().row_group(group).num_rows().max(0) as u64;
+            pieces += group_rows.div_ceil(rows.max(1)) as usize;
+            rows_before += group_rows;
+        }
+        Some(Box::new(RowPieces {
+            info: self.info.clone(),
+            metadata: self.metadata.clone(),
+            encrypted_columns: self.encrypted_columns,
+            rows_per_piece: rows.max(1),
+            first_piece,
+            first_row,
+            pieces,
+            rows: rows_before,
+        }))
     }
 
     fn next_batch(&mut self) -> Result<Option<Batch>, SourceError> {
@@ -417,7 +453,8 @@ impl Source for ParquetSource {
                 Ok(None) => {
                     let read = current.rows;
                     let stated = self.metadata.metadata().row_group(group).num_rows().max(0) as u64;
-                    if read != stated {
+                    let end = self.rows_in_group.map_or(stated, |(_, to)| to);
+                    if read != end {
                         let message = format!("its metadata states {stated} rows but the reader produced {read}");
                         return Err(self.fail(group, message));
                     }
@@ -426,5 +463,51 @@ impl Source for ParquetSource {
                 Err(panic) => return Err(self.fail(group, panic)),
             }
         }
+    }
+}
+
+/// A Parquet file as pieces of `rows_per_piece` rows within its row groups
+/// (the last piece of a group may be shorter), for a spread sample.
+struct RowPieces {
+    info: SourceInfo,
+    metadata: ArrowReaderMetadata,
+    encrypted_columns: bool,
+    rows_per_piece: u64,
+    /// Per row group: the index of its first piece, and of its first row.
+    first_piece: Vec<usize>,
+    first_row: Vec<u64>,
+    pieces: usize,
+    rows: u64,
+}
+
+impl super::Pieces for RowPieces {
+    fn count(&self) -> usize {
+        self.pieces
+    }
+
+    fn estimated_rows(&self) -> u64 {
+        self.rows
+    }
+
+    fn piece(&self, i: usize) -> Result<(Box<dyn Source>, Option<u64>), SourceError> {
+        let group = self.first_piece.partition_point(|&first| first <= i) - 1;
+        let group_rows = self.metadata.metadata().row_group(group).num_rows().max(0) as u64;
+        let from = (i - self.first_piece[group]) as u64 * self.rows_per_piece;
+        let to = (from + self.rows_per_piece).min(group_rows);
+        let path = &self.info.path;
+        let file = File::open(path).map_err(|e| SourceError::io(path, e))?;
+        let source = ParquetSource {
+            info: self.info.clone(),
+            file,
+            metadata: self.metadata.clone(),
+            next_group: group,
+            end_group: group + 1,
+            current: None,
+            rows_done: 0,
+            failed: false,
+            encrypted_columns: self.encrypted_columns,
+            rows_in_group: Some((from, to)),
+        };
+        Ok((Box::new(source), Some(self.first_row[group] + from)))
     }
 }

@@ -3,9 +3,11 @@
 //!
 //! 1. A generated JSON Lines file of at least 8 GB (23 M rows of the
 //!    profile benchmark's 15 mixed columns), read whole: peak resident set
-//!    and wall time; then `--first-look` on the same file, beside it.
+//!    and wall time; then `--first-look` and `--sample 10000` (a spread
+//!    sample) on the same file, beside it.
 //! 2. A directory of 5,000 Parquet part files (2,000 rows each, Hive-style
-//!    `week=N` partitions): peak resident set and wall time.
+//!    `week=N` partitions): peak resident set and wall time, and of a
+//!    spread sample of it.
 //!
 //! Peak memory is `/usr/bin/time -v`'s maximum resident set size (Debian
 //! package `time`). Run: `cargo build --release && cargo bench --bench
@@ -33,7 +35,8 @@ struct Run {
 /// Runs the release binary under `/usr/bin/time -v`.
 fn measured(args: &[&str]) -> Run {
     let started = Instant::now();
-    let out = Command::new("/usr/bin/time").arg("-v").arg(plumbline_binary()).args(args).output().expect("/usr/bin/time");
+    let out =
+        Command::new("/usr/bin/time").arg("-v").arg(plumbline_binary()).args(args).output().expect("/usr/bin/time");
     let wall = started.elapsed();
     let report = String::from_utf8_lossy(&out.stderr);
     assert!(out.status.success(), "plumbline {args:?}: {report}");
@@ -70,17 +73,27 @@ fn main() {
     let path = jsonl.to_str().unwrap();
     let whole = measured(&["profile", path]);
     let look = measured(&["profile", "--first-look", path]);
+    let sample = measured(&["profile", "--sample", "10000", path]);
     println!("JSON Lines, {:.2} GB: {}", bytes / 1e9, first_line(&whole.stdout));
     println!("  profile (every row):   peak {:>7.0} MB  {:>8.1} s", whole.peak_mb, whole.wall.as_secs_f64());
     println!("  profile --first-look:  peak {:>7.0} MB  {:>8.3} s", look.peak_mb, look.wall.as_secs_f64());
+    println!("  profile --sample 10000: peak {:>7.0} MB  {:>8.3} s", sample.peak_mb, sample.wall.as_secs_f64());
+    println!("  {}", sample.stdout.lines().find(|l| l.contains("SAMPLE:")).unwrap_or("(no SAMPLE line)").trim());
     println!("  peak / file size: {:.4}", whole.peak_mb * 1024.0 * 1024.0 / bytes);
     println!("  first look / whole read, time: {:.5}", look.wall.as_secs_f64() / whole.wall.as_secs_f64());
+    println!("  spread sample / whole read, time: {:.5}", sample.wall.as_secs_f64() / whole.wall.as_secs_f64());
 
     let dir = parts_dir(5_000, 2_000);
     let parts = measured(&["profile", dir.to_str().unwrap()]);
+    let parts_sample = measured(&["profile", "--sample", "10000", dir.to_str().unwrap()]);
     let dir_bytes: u64 = walk_bytes(&dir);
     println!("Directory of 5,000 Parquet parts, {:.2} GB: {}", dir_bytes as f64 / 1e9, first_line(&parts.stdout));
     println!("  profile (every part):  peak {:>7.0} MB  {:>8.1} s", parts.peak_mb, parts.wall.as_secs_f64());
+    println!(
+        "  profile --sample 10000: peak {:>7.0} MB  {:>8.3} s",
+        parts_sample.peak_mb,
+        parts_sample.wall.as_secs_f64()
+    );
 }
 
 fn walk_bytes(dir: &Path) -> u64 {

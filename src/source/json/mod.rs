@@ -165,6 +165,14 @@ pub fn as_row(value: Value) -> Value {
 
 impl JsonSource {
     /// The file in chunks of about `target` bytes (tests use small ones).
+    /// Whether this reads a whole uncompressed JSON Lines file and has not
+    /// started: only then can it be cut by byte offsets.
+    fn is_unread_lines_file(&self) -> bool {
+        let untouched = self.file_bytes_read.load(Ordering::Relaxed) == 0 && !self.finished;
+        let whole_file = self.range_end.is_none();
+        self.info.format == Format::JsonLines && self.info.compression == Compression::None && untouched && whole_file
+    }
+
     pub(crate) fn split_every(&mut self, target: u64) -> Option<Vec<Box<dyn Source>>> {
         super::chunks::TextChunk::split(&self.info, super::chunks::ChunkFormat::JsonLines, 0, target)
     }
@@ -200,19 +208,19 @@ impl Source for JsonSource {
     /// An uncompressed JSON Lines file of at least two chunks, in chunks
     /// read in parallel (a line break never sits inside a JSON record).
     fn split(&mut self) -> Option<Vec<Box<dyn Source>>> {
-        let untouched = self.file_bytes_read.load(Ordering::Relaxed) == 0 && !self.finished;
-        let whole_file = self.range_end.is_none();
-        if self.info.format != Format::JsonLines
-            || self.info.compression != Compression::None
-            || !untouched
-            || !whole_file
-        {
-            return None;
-        }
-        if self.info.bytes < 2 * super::chunks::CHUNK_BYTES {
+        if !self.is_unread_lines_file() || self.info.bytes < 2 * super::chunks::CHUNK_BYTES {
             return None;
         }
         self.split_every(super::chunks::CHUNK_BYTES)
+    }
+
+    fn pieces(&mut self, rows: u64) -> Option<Box<dyn super::Pieces>> {
+        if !self.is_unread_lines_file() {
+            return None;
+        }
+        // A file that cannot be probed is read whole, which reports the error.
+        let pieces = super::pieces::LinePieces::new(&self.info, rows).ok()?;
+        Some(Box::new(pieces))
     }
 
     fn progress(&self) -> Progress {
