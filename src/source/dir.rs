@@ -394,8 +394,11 @@ impl Source for DirSource {
         if self.next_part != 0 || self.current.is_some() || self.parts.len() < 2 {
             return None;
         }
+        // Without the directory's facts: they list every part, and a copy
+        // in each part made memory grow with the square of the parts.
+        let shared = SourceInfo { facts: super::Facts::default(), ..self.info.clone() };
         let parts = self.parts.iter().map(|part| {
-            let info = SourceInfo { path: part.path.clone(), bytes: part.bytes, parts: 1, ..self.info.clone() };
+            let info = SourceInfo { path: part.path.clone(), bytes: part.bytes, parts: 1, ..shared.clone() };
             let (part, partition_fields, options) = (part.clone(), self.partition_fields.clone(), self.options);
             Box::new(LazyPart::new(info, move || open_part(part, partition_fields, options))) as Box<dyn Source>
         });
@@ -458,6 +461,22 @@ mod tests {
         );
         let file = Path::new("/data/year=__HIVE_DEFAULT_PARTITION__/p.json");
         assert_eq!(partition_segments(dir, file), vec![("year".into(), None)]);
+    }
+
+    #[test]
+    fn split_parts_do_not_carry_the_list_of_every_part() {
+        let dir = tempfile::tempdir().unwrap();
+        for i in 0..3 {
+            std::fs::write(dir.path().join(format!("part-{i}.jsonl")), format!("{{\"id\":{i}}}\n")).unwrap();
+        }
+        let mut source = open_directory(dir.path(), OpenOptions::default()).unwrap();
+        assert_eq!(source.info().facts.part_files.len(), 3);
+        let parts = source.split().expect("one part per file");
+        assert_eq!(parts.len(), 3);
+        for part in &parts {
+            assert_eq!(part.info().parts, 1);
+            assert!(part.info().facts.part_files.is_empty(), "{:?}", part.info().facts.part_files);
+        }
     }
 
     #[test]
