@@ -1,9 +1,10 @@
 //! A spread sample: the source is cut into many small pieces (see
 //! [`crate::source::Pieces`]), pieces are picked at random and read whole
 //! until they hold [`READ_FACTOR`] times the rows wanted, and a reservoir
-//! keeps a uniform sample of the rows read. Every row of the source has the
-//! same chance to be in it (each piece is as likely to be picked, and each
-//! row read is as likely to be kept), but rows come in runs from the pieces
+//! keeps a uniform sample of the rows read. Every row of the source has
+//! about the same chance to be in it (each piece is as likely to be picked,
+//! and each row read is as likely to be kept; not exactly, since pieces hold
+//! different numbers of rows and reading stops once enough are seen), but rows come in runs from the pieces
 //! read, and the rest of the source is never read: time depends on the
 //! sample size, not the source's.
 
