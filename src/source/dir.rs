@@ -58,44 +58,23 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
             message: "no data files (skipping _SUCCESS, *.crc, hidden and empty files)".into(),
         });
     }
-    let mut format: Option<(Format, PathBuf)> = None;
+    let first_format = detect::detect(&files[0], options.format)?.format;
     let mut parts = Vec::new();
     let mut bytes = 0;
     let mut schemas: Vec<(PathBuf, Option<SchemaRef>, Option<u64>)> = Vec::new();
     let mut parquet_leaves = None;
-    for file in files {
-        let detected = detect::detect(&file, options.format)?;
-        match &format {
-            None => format = Some((detected.format, file.clone())),
-            Some((first, first_path)) if !same_family(*first, detected.format) => {
-                return Err(SourceError::Directory {
-                    path: file.clone(),
-                    message: format!(
-                        "this part is {} but {} is {}; all parts of a directory must be one format",
-                        detected.format.label(),
-                        first_path.display(),
-                        first.label()
-                    ),
-                });
-            }
-            Some(_) => {}
+    let peeks = peek_all(&files, first_format, options);
+    for (file, peek) in files.into_iter().zip(peeks) {
+        let peek = peek?;
+        bytes += peek.bytes;
+        if parquet_leaves.is_none() {
+            parquet_leaves = peek.parquet_leaves;
         }
-        let file_bytes = std::fs::metadata(&file).map_err(|e| SourceError::io(&file, e))?.len();
-        bytes += file_bytes;
-        if !detected.format.is_text() {
-            let source = open_file(&file, options)?;
-            if parquet_leaves.is_none() {
-                parquet_leaves = source.info().parquet_leaves.clone();
-            }
-            schemas.push((file.clone(), source.info().schema.clone(), source.info().rows));
-        } else {
-            schemas.push((file.clone(), None, None));
-        }
-        let rows = schemas.last().and_then(|(_, _, rows)| *rows);
+        schemas.push((file.clone(), peek.schema, peek.rows));
         let partitions = partition_segments(dir, &file);
-        parts.push(Part { path: file, bytes: file_bytes, rows, partitions });
+        parts.push(Part { path: file, bytes: peek.bytes, rows: peek.rows, partitions });
     }
-    let (format, _) = format.expect("at least one part");
+    let format = first_format;
     let partition_fields = partition_fields(&parts);
     let first_schema = schemas[0].1.clone();
     let schema = first_schema.as_ref().map(|s| with_partition_fields(s, &partition_fields));
@@ -119,6 +98,73 @@ pub fn open_directory(dir: &Path, options: OpenOptions) -> Result<Box<dyn Source
     };
     let partition_fields = Arc::new(partition_fields);
     Ok(Box::new(DirSource { info, parts, partition_fields, options, next_part: 0, current: None, bytes_done: 0 }))
+}
+
+/// What opening a directory needs to know of one part file.
+struct Peek {
+    bytes: u64,
+    /// Declared schema and rows: from the footer of a Parquet or Arrow part.
+    schema: Option<SchemaRef>,
+    rows: Option<u64>,
+    parquet_leaves: Option<Arc<std::collections::HashMap<String, super::parquet::ParquetLeaf>>>,
+}
+
+/// Part files peeked at once. Opening thousands of parts is mostly waiting
+/// on the disk for each footer (a few small reads per part), and a disk
+/// serves many reads at a time. With a cold page cache, a `--sample 10000`
+/// of 5,000 Parquet parts took 2.2 s peeking one part at a time, 1.0 s eight
+/// at a time and 0.8 s 32 at a time (medians; peak memory the same 78 MB
+/// once mimalloc stopped asking for huge pages, see Cargo.toml). Our own
+/// choice, from those figures.
+const PEEKS_AT_ONCE: usize = 32;
+
+/// Peeks at every file, [`PEEKS_AT_ONCE`] at a time; results in file order.
+fn peek_all(files: &[PathBuf], first_format: Format, options: OpenOptions) -> Vec<Result<Peek, SourceError>> {
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    let next = AtomicUsize::new(0);
+    let mut results: Vec<(usize, Result<Peek, SourceError>)> = std::thread::scope(|scope| {
+        let workers: Vec<_> = (0..PEEKS_AT_ONCE.min(files.len()))
+            .map(|_| {
+                scope.spawn(|| {
+                    let mut done = Vec::new();
+                    loop {
+                        let i = next.fetch_add(1, Ordering::Relaxed);
+                        let Some(file) = files.get(i) else { break done };
+                        done.push((i, peek(file, &files[0], first_format, options)));
+                    }
+                })
+            })
+            .collect();
+        // Decoders' panics are caught where they are called; one that is
+        // not goes on as it would have in this thread.
+        workers.into_iter().flat_map(|w| w.join().unwrap_or_else(|panic| std::panic::resume_unwind(panic))).collect()
+    });
+    results.sort_by_key(|(i, _)| *i);
+    results.into_iter().map(|(_, r)| r).collect()
+}
+
+/// Detects `file`'s format, checks it against the first part's, and reads
+/// its footer when it has one.
+fn peek(file: &Path, first_path: &Path, first_format: Format, options: OpenOptions) -> Result<Peek, SourceError> {
+    let detected = detect::detect(file, options.format)?;
+    if !same_family(first_format, detected.format) {
+        return Err(SourceError::Directory {
+            path: file.to_path_buf(),
+            message: format!(
+                "this part is {} but {} is {}; all parts of a directory must be one format",
+                detected.format.label(),
+                first_path.display(),
+                first_format.label()
+            ),
+        });
+    }
+    let bytes = std::fs::metadata(file).map_err(|e| SourceError::io(file, e))?.len();
+    if detected.format.is_text() {
+        return Ok(Peek { bytes, schema: None, rows: None, parquet_leaves: None });
+    }
+    let source = open_file(file, options)?;
+    let info = source.info();
+    Ok(Peek { bytes, schema: info.schema.clone(), rows: info.rows, parquet_leaves: info.parquet_leaves.clone() })
 }
 
 /// A one-line JSON Lines part looks like a JSON document; both give the same rows.
@@ -477,6 +523,62 @@ mod tests {
             assert_eq!(part.info().parts, 1);
             assert!(part.info().facts.part_files.is_empty(), "{:?}", part.info().facts.part_files);
         }
+    }
+
+    /// A Parquet file with one Int64 field `field` holding `rows` values.
+    fn write_parquet(path: &Path, field: &str, rows: usize) {
+        let schema = Arc::new(Schema::new(vec![Field::new(field, DataType::Int64, false)]));
+        let column: ArrayRef = Arc::new(Int64Array::from_iter_values(0..rows as i64));
+        let batch = RecordBatch::try_new(schema.clone(), vec![column]).unwrap();
+        let file = std::fs::File::create(path).unwrap();
+        let mut writer = parquet::arrow::ArrowWriter::try_new(file, schema, None).unwrap();
+        writer.write(&batch).unwrap();
+        writer.close().unwrap();
+    }
+
+    #[test]
+    fn parts_peeked_at_once_keep_their_order_and_footers() {
+        let dir = tempfile::tempdir().unwrap();
+        let count = 3 * PEEKS_AT_ONCE + 5;
+        for i in 0..count {
+            let field = if i == 2 * PEEKS_AT_ONCE + 1 { "other" } else { "id" };
+            write_parquet(&dir.path().join(format!("part-{i:03}.parquet")), field, i + 1);
+        }
+        let source = open_directory(dir.path(), OpenOptions::default()).unwrap();
+        let info = source.info();
+        assert_eq!(info.parts, count);
+        assert_eq!(info.rows, Some((1..=count as u64).sum()));
+        let names: Vec<String> = (0..count).map(|i| format!("part-{i:03}.parquet")).collect();
+        assert_eq!(info.facts.part_files, names);
+        let odd = format!("part-{:03}.parquet", 2 * PEEKS_AT_ONCE + 1);
+        assert_eq!(info.facts.schema_differences.len(), 2, "{:?}", info.facts.schema_differences);
+        assert!(
+            info.facts.schema_differences.iter().all(|d| d.starts_with(&odd)),
+            "{:?}",
+            info.facts.schema_differences
+        );
+        let files: Vec<PathBuf> = names.iter().map(|n| dir.path().join(n)).collect();
+        let rows: Vec<Option<u64>> =
+            peek_all(&files, Format::Parquet, OpenOptions::default()).into_iter().map(|p| p.unwrap().rows).collect();
+        assert_eq!(rows, (1..=count as u64).map(Some).collect::<Vec<_>>());
+    }
+
+    #[test]
+    fn of_several_bad_parts_the_first_in_file_order_is_named() {
+        let dir = tempfile::tempdir().unwrap();
+        let count = 3 * PEEKS_AT_ONCE;
+        for i in 0..count {
+            let path = dir.path().join(format!("part-{i:03}.parquet"));
+            if i == PEEKS_AT_ONCE + 3 || i == count - 1 {
+                std::fs::write(&path, "id\n1\n").unwrap();
+            } else {
+                write_parquet(&path, "id", 1);
+            }
+        }
+        let error = open_directory(dir.path(), OpenOptions::default()).err().expect("a text part among Parquet parts");
+        let message = error.to_string();
+        let first_bad = format!("part-{:03}.parquet", PEEKS_AT_ONCE + 3);
+        assert!(message.contains(&first_bad) && message.contains("one format"), "{message}");
     }
 
     #[test]
