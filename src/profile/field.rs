@@ -3,6 +3,7 @@
 use super::budget::Budget;
 use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
+use super::tally;
 use super::text::TextStats;
 use super::top::{Kept, TopValues};
 use crate::shape::strings::Form;
@@ -41,6 +42,14 @@ pub struct Instants {
     /// The calendar histogram as a report states it (statistics read back
     /// from a report, whose `seconds` only approximate the distribution).
     pub calendar: Option<super::calendar::CalendarHistogram>,
+}
+
+/// A kept value as shown: text cut to [`SHOWN_CHARS`].
+fn shown(kept: Kept) -> Kept {
+    match kept {
+        Kept::Text(s) => Kept::Text(truncate_chars(s, SHOWN_CHARS)),
+        other => other,
+    }
 }
 
 /// When this process first profiled, in epoch seconds: the "now" that
@@ -83,10 +92,24 @@ impl FieldStats {
     /// A scalar value: its hash for distinct and top counts, and the value.
     pub fn add_scalar(&mut self, hash: u64, keep: impl FnOnce() -> Kept) {
         self.distinct.add_hash(hash);
-        self.top.add(hash, || match keep() {
-            Kept::Text(s) => Kept::Text(truncate_chars(s, SHOWN_CHARS)),
-            other => other,
+        self.top.add(hash, || shown(keep()));
+    }
+
+    /// A run of scalar values by their hashes, in order; `keep(i)` gives the
+    /// i-th value. Each distinct value of the run reaches the distinct set and
+    /// top values once, with its count, where that pays (see [`tally`]): the
+    /// same counts as adding them one by one.
+    pub fn add_scalars(&mut self, hashes: &[u64], keep: impl Fn(usize) -> Kept) {
+        let counted = tally::each_distinct(hashes, |c| {
+            self.distinct.add_hash(c.hash);
+            self.top.add_count(c.hash, c.count, || shown(keep(c.first)));
         });
+        if !counted {
+            for (i, &hash) in hashes.iter().enumerate() {
+                self.distinct.add_hash(hash);
+                self.top.add(hash, || shown(keep(i)));
+            }
+        }
     }
 
     /// A text value and the form the Shape recognised in it.
@@ -198,8 +221,64 @@ impl FieldStats {
 impl PartialEq for FieldStats {
     fn eq(&self, other: &Self) -> bool {
         let numbers = |s: &FieldStats| {
-            s.numbers.as_ref().map(|n| (n.moments.count(), n.moments.min(), n.moments.max(), n.nan, n.pos_inf, n.neg_inf))
+            s.numbers
+                .as_ref()
+                .map(|n| (n.moments.count(), n.moments.min(), n.moments.max(), n.nan, n.pos_inf, n.neg_inf))
         };
         self.distinct.count() == other.distinct.count() && numbers(self) == numbers(other)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::profile::hash;
+
+    /// The same values one at a time and as runs (counted where that pays).
+    fn both_ways(values: &[i64], run: usize) -> (FieldStats, FieldStats) {
+        let mut one_by_one = FieldStats::default();
+        let mut by_runs = FieldStats::default();
+        for &v in values {
+            one_by_one.add_scalar(hash::int(v.into()), || Kept::Int(v.into()));
+        }
+        for chunk in values.chunks(run) {
+            let hashes: Vec<u64> = chunk.iter().map(|&v| hash::int(v.into())).collect();
+            by_runs.add_scalars(&hashes, |i| Kept::Int(chunk[i].into()));
+        }
+        (one_by_one, by_runs)
+    }
+
+    #[test]
+    fn runs_count_distinct_and_top_values_as_one_by_one_does() {
+        // A few categories (counted runs), then mostly distinct values (runs left uncounted).
+        let few: Vec<i64> = (0..50_000).map(|i| (i * 7919) % 37).collect();
+        let many: Vec<i64> = (0..50_000).map(|i| 1_000 + i % 9_000).collect();
+        for values in [few, many] {
+            let (a, b) = both_ways(&values, 8192);
+            assert_eq!(a.distinct.count(), b.distinct.count());
+            assert!(b.top.is_exact());
+            assert_eq!(a.top.top(20), b.top.top(20));
+            assert_eq!(a.top.total(), b.top.total());
+        }
+    }
+
+    #[test]
+    fn summarised_top_values_from_runs_keep_the_bound() {
+        // 30,000 distinct values past the exact limit, with three heavy ones.
+        let values: Vec<i64> = (0..120_000i64)
+            .map(|i| match i % 4 {
+                0 => -1,
+                1 if i % 8 == 1 => -2,
+                _ => i % 30_000,
+            })
+            .collect();
+        let (_, runs) = both_ways(&values, 8192);
+        assert!(!runs.top.is_exact());
+        let bound = runs.top.max_undercount();
+        let top = runs.top.top(2);
+        assert_eq!(top.iter().map(|t| t.value.as_str()).collect::<Vec<_>>(), ["-1", "-2"]);
+        for (t, truth) in top.iter().zip([30_000u64, 15_000]) {
+            assert!(t.count <= truth && truth - t.count <= bound, "{t:?} vs {truth}, bound {bound}");
+        }
     }
 }

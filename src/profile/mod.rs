@@ -16,5 +16,6 @@ pub mod kll;
 pub mod moments;
 pub mod numbers;
 pub mod quantiles;
+pub mod tally;
 pub mod text;
 pub mod top;

@@ -142,22 +142,26 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         List(field) => {
             let l = array.as_list::<i32>();
-            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let ranges =
+                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeList(field) => {
             let l = array.as_list::<i64>();
-            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let ranges =
+                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         ListView(field) => {
             let l = array.as_list_view::<i32>();
-            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let ranges =
+                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeListView(field) => {
             let l = array.as_list_view::<i64>();
-            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let ranges =
+                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         FixedSizeList(field, size) => {
@@ -169,8 +173,9 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Map(_, _) => {
             node.kinds.add(Kind::Map, n);
             let m = array.as_map();
-            let ranges: Vec<(usize, usize)> =
-                positions(present, m.len()).map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize)).collect();
+            let ranges: Vec<(usize, usize)> = positions(present, m.len())
+                .map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize))
+                .collect();
             if let Some(stats) = node.stats.as_deref_mut() {
                 ranges.iter().for_each(|&(_, len)| stats.add_list_length(len));
             }
@@ -179,8 +184,16 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             if let DataType::Struct(kv) = entries.data_type()
                 && kv.len() == 2
             {
-                observe_array(child_for(node, kv[0].name(), &kv[0], Role::MapKey), entries.column(0).as_ref(), Some(&mask));
-                observe_array(child_for(node, kv[1].name(), &kv[1], Role::MapValue), entries.column(1).as_ref(), Some(&mask));
+                observe_array(
+                    child_for(node, kv[0].name(), &kv[0], Role::MapKey),
+                    entries.column(0).as_ref(),
+                    Some(&mask),
+                );
+                observe_array(
+                    child_for(node, kv[1].name(), &kv[1], Role::MapValue),
+                    entries.column(1).as_ref(),
+                    Some(&mask),
+                );
             }
         }
         Union(fields, mode) => {
@@ -221,10 +234,9 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Boolean => {
             let a = array.as_boolean();
             if let Some(stats) = node.stats.as_deref_mut() {
-                for i in positions(present, a.len()) {
-                    let b = a.value(i);
-                    stats.add_scalar(hash::bool(b), || Kept::Text(b.to_string()));
-                }
+                let values: Vec<bool> = positions(present, a.len()).map(|i| a.value(i)).collect();
+                let hashes: Vec<u64> = values.iter().map(|&b| hash::bool(b)).collect();
+                stats.add_scalars(&hashes, |i| Kept::Text(values[i].to_string()));
             }
             node.kinds.add(Kind::Bool, n);
         }
@@ -246,32 +258,50 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
         Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
         Time32(TimeUnit::Second) => observe_primitive_raw::<Time32SecondType>(node, Kind::Time, n, array, present),
-        Time32(TimeUnit::Millisecond) => observe_primitive_raw::<Time32MillisecondType>(node, Kind::Time, n, array, present),
-        Time64(TimeUnit::Microsecond) => observe_primitive_raw::<Time64MicrosecondType>(node, Kind::Time, n, array, present),
-        Time64(TimeUnit::Nanosecond) => observe_primitive_raw::<Time64NanosecondType>(node, Kind::Time, n, array, present),
-        Duration(TimeUnit::Second) => observe_primitive_raw::<DurationSecondType>(node, Kind::Duration, n, array, present),
-        Duration(TimeUnit::Millisecond) => observe_primitive_raw::<DurationMillisecondType>(node, Kind::Duration, n, array, present),
-        Duration(TimeUnit::Microsecond) => observe_primitive_raw::<DurationMicrosecondType>(node, Kind::Duration, n, array, present),
-        Duration(TimeUnit::Nanosecond) => observe_primitive_raw::<DurationNanosecondType>(node, Kind::Duration, n, array, present),
+        Time32(TimeUnit::Millisecond) => {
+            observe_primitive_raw::<Time32MillisecondType>(node, Kind::Time, n, array, present)
+        }
+        Time64(TimeUnit::Microsecond) => {
+            observe_primitive_raw::<Time64MicrosecondType>(node, Kind::Time, n, array, present)
+        }
+        Time64(TimeUnit::Nanosecond) => {
+            observe_primitive_raw::<Time64NanosecondType>(node, Kind::Time, n, array, present)
+        }
+        Duration(TimeUnit::Second) => {
+            observe_primitive_raw::<DurationSecondType>(node, Kind::Duration, n, array, present)
+        }
+        Duration(TimeUnit::Millisecond) => {
+            observe_primitive_raw::<DurationMillisecondType>(node, Kind::Duration, n, array, present)
+        }
+        Duration(TimeUnit::Microsecond) => {
+            observe_primitive_raw::<DurationMicrosecondType>(node, Kind::Duration, n, array, present)
+        }
+        Duration(TimeUnit::Nanosecond) => {
+            observe_primitive_raw::<DurationNanosecondType>(node, Kind::Duration, n, array, present)
+        }
         Timestamp(unit, zone) => {
             let (scale, raw) = match unit {
                 arrow_schema::TimeUnit::Second => (1, array.as_primitive::<TimestampSecondType>().values().clone()),
-                arrow_schema::TimeUnit::Millisecond => (1_000, array.as_primitive::<TimestampMillisecondType>().values().clone()),
-                arrow_schema::TimeUnit::Microsecond => (1_000_000, array.as_primitive::<TimestampMicrosecondType>().values().clone()),
-                arrow_schema::TimeUnit::Nanosecond => (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone()),
+                arrow_schema::TimeUnit::Millisecond => {
+                    (1_000, array.as_primitive::<TimestampMillisecondType>().values().clone())
+                }
+                arrow_schema::TimeUnit::Microsecond => {
+                    (1_000_000, array.as_primitive::<TimestampMicrosecondType>().values().clone())
+                }
+                arrow_schema::TimeUnit::Nanosecond => {
+                    (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone())
+                }
             };
             if let Some(stats) = node.stats.as_deref_mut() {
                 let shown_as = Arc::new(array.data_type().clone());
-                let mut seconds = Vec::with_capacity(if zone.is_some() { n as usize } else { 0 });
-                for i in positions(present, array.len()) {
-                    let v = raw[i];
-                    stats.add_scalar(hash::other(&v.to_le_bytes()), || Kept::Raw { raw: v.into(), shown_as: shown_as.clone() });
-                    // Only zoned timestamps are instants; local ones have no place in time.
-                    if zone.is_some() {
-                        seconds.push(v.div_euclid(scale));
-                    }
+                let values: Vec<i64> = positions(present, array.len()).map(|i| raw[i]).collect();
+                let hashes: Vec<u64> = values.iter().map(|v| hash::other(&v.to_le_bytes())).collect();
+                stats.add_scalars(&hashes, |i| Kept::Raw { raw: values[i].into(), shown_as: shown_as.clone() });
+                // Only zoned timestamps are instants; local ones have no place in time.
+                if zone.is_some() {
+                    let seconds: Vec<i64> = values.iter().map(|v| v.div_euclid(scale)).collect();
+                    stats.add_instants(&seconds);
                 }
-                stats.add_instants(&seconds);
             }
             node.kinds.add(Kind::Timestamp, n);
         }
@@ -282,11 +312,16 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
 fn observe_strings<'a>(node: &mut FieldShape, n: u64, values: impl Iterator<Item = &'a str>) {
     let forms = &mut node.kinds.forms;
     match node.stats.as_deref_mut() {
-        Some(stats) => values.for_each(|v| {
-            let form = forms.observe(v);
-            stats.add_scalar(hash::string(v), || Kept::Text(v.to_string()));
-            stats.add_text(v, form);
-        }),
+        Some(stats) => {
+            let values: Vec<&str> = values.collect();
+            let mut hashes = Vec::with_capacity(values.len());
+            for &v in &values {
+                let form = forms.observe(v);
+                stats.add_text(v, form);
+                hashes.push(hash::string(v));
+            }
+            stats.add_scalars(&hashes, |i| Kept::Text(values[i].to_string()));
+        }
         None => values.for_each(|v| {
             forms.observe(v);
         }),
@@ -299,11 +334,9 @@ fn observe_floats(node: &mut FieldShape, n: u64, values: impl Iterator<Item = f6
     if let Some(stats) = node.stats.as_deref_mut() {
         let values: Vec<f64> = values.collect();
         stats.add_numbers(&values);
-        for v in values {
-            if !v.is_nan() {
-                stats.add_scalar(hash::float(v), || Kept::Float(v));
-            }
-        }
+        let not_nan: Vec<f64> = values.into_iter().filter(|v| !v.is_nan()).collect();
+        let hashes: Vec<u64> = not_nan.iter().map(|&v| hash::float(v)).collect();
+        stats.add_scalars(&hashes, |i| Kept::Float(not_nan[i]));
     }
     node.kinds.add(Kind::Float, n);
 }
@@ -318,17 +351,23 @@ fn observe_raw<'a>(
     values: impl Iterator<Item = (usize, &'a [u8])>,
 ) {
     if let Some(stats) = node.stats.as_deref_mut() {
-        for (i, bytes) in values {
-            stats.add_scalar(hash::other(bytes), || Kept::Text(arrow_cast::display::array_value_to_string(array, i).unwrap_or_default()));
-        }
+        let (at, hashes): (Vec<usize>, Vec<u64>) = values.map(|(i, bytes)| (i, hash::other(bytes))).unzip();
+        stats.add_scalars(&hashes, |j| {
+            Kept::Text(arrow_cast::display::array_value_to_string(array, at[j]).unwrap_or_default())
+        });
     }
     node.kinds.add(kind, n);
 }
 
 /// Fixed-width primitives (temporal) by their native bytes, kept as raw
 /// integers and rendered only if reported.
-fn observe_primitive_raw<T>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>)
-where
+fn observe_primitive_raw<T>(
+    node: &mut FieldShape,
+    kind: Kind,
+    n: u64,
+    array: &dyn Array,
+    present: Option<&BooleanBuffer>,
+) where
     T: ArrowPrimitiveType,
     T::Native: Into<i128>,
 {
@@ -337,10 +376,9 @@ where
     let width = std::mem::size_of::<T::Native>();
     if let Some(stats) = node.stats.as_deref_mut() {
         let shown_as = Arc::new(array.data_type().clone());
-        for i in positions(present, a.len()) {
-            let raw: i128 = a.values()[i].into();
-            stats.add_scalar(hash::other(&bytes[i * width..(i + 1) * width]), || Kept::Raw { raw, shown_as: shown_as.clone() });
-        }
+        let at: Vec<usize> = positions(present, a.len()).collect();
+        let hashes: Vec<u64> = at.iter().map(|&i| hash::other(&bytes[i * width..(i + 1) * width])).collect();
+        stats.add_scalars(&hashes, |j| Kept::Raw { raw: a.values()[at[j]].into(), shown_as: shown_as.clone() });
     }
     node.kinds.add(kind, n);
 }
@@ -355,19 +393,23 @@ where
     let divisor = 10f64.powi(scale as i32);
     if let Some(stats) = node.stats.as_deref_mut() {
         let shown_as = Arc::new(array.data_type().clone());
-        let mut numbers = Vec::with_capacity(n as usize);
-        for i in positions(present, a.len()) {
-            let raw: i128 = a.values()[i].into();
-            numbers.push(raw as f64 / divisor);
-            stats.add_scalar(hash::other(&raw.to_le_bytes()), || Kept::Raw { raw, shown_as: shown_as.clone() });
-        }
+        let raws: Vec<i128> = positions(present, a.len()).map(|i| a.values()[i].into()).collect();
+        let numbers: Vec<f64> = raws.iter().map(|&raw| raw as f64 / divisor).collect();
+        let hashes: Vec<u64> = raws.iter().map(|raw| hash::other(&raw.to_le_bytes())).collect();
+        stats.add_scalars(&hashes, |i| Kept::Raw { raw: raws[i], shown_as: shown_as.clone() });
         stats.add_numbers(&numbers);
     }
     node.kinds.add(Kind::Decimal, n);
 }
 
 /// A list's elements: the (offset, length) ranges of its present values.
-fn observe_list(node: &mut FieldShape, n: u64, field: &Field, values: &dyn Array, ranges: impl Iterator<Item = (usize, usize)>) {
+fn observe_list(
+    node: &mut FieldShape,
+    n: u64,
+    field: &Field,
+    values: &dyn Array,
+    ranges: impl Iterator<Item = (usize, usize)>,
+) {
     node.kinds.add(Kind::Array, n);
     let ranges: Vec<(usize, usize)> = ranges.collect();
     if let Some(stats) = node.stats.as_deref_mut() {
@@ -395,19 +437,24 @@ where
     let mut lo = i128::MAX;
     let mut hi = i128::MIN;
     let mut n = 0u64;
-    let mut stats = node.stats.as_deref_mut();
-    let mut numbers = Vec::with_capacity(if stats.is_some() { a.len() } else { 0 });
+    let stats = node.stats.as_deref_mut();
+    let capacity = if stats.is_some() { a.len() } else { 0 };
+    let mut numbers = Vec::with_capacity(capacity);
+    let mut hashes = Vec::with_capacity(capacity);
     for i in positions(present, a.len()) {
         let v: i128 = values[i].into();
         lo = lo.min(v);
         hi = hi.max(v);
         n += 1;
-        if let Some(stats) = stats.as_deref_mut() {
+        if stats.is_some() {
             numbers.push(v as f64);
-            stats.add_scalar(hash::int(v), || Kept::Int(v));
+            hashes.push(hash::int(v));
         }
     }
     if let Some(stats) = stats {
+        // Positions are needed only for the few values kept, and only under a mask.
+        let at: Option<Vec<usize>> = present.map(|m| m.set_indices().collect());
+        stats.add_scalars(&hashes, |j| Kept::Int(values[at.as_ref().map_or(j, |at| at[j])].into()));
         stats.add_numbers(&numbers);
     }
     node.kinds.add(Kind::Int, n);
