@@ -221,9 +221,7 @@ impl FieldStats {
 impl PartialEq for FieldStats {
     fn eq(&self, other: &Self) -> bool {
         let numbers = |s: &FieldStats| {
-            s.numbers
-                .as_ref()
-                .map(|n| (n.moments.count(), n.moments.min(), n.moments.max(), n.nan, n.pos_inf, n.neg_inf))
+            s.numbers.as_ref().map(|n| (n.moments.count(), n.moments.min(), n.moments.max(), n.nan, n.pos_inf, n.neg_inf))
         };
         self.distinct.count() == other.distinct.count() && numbers(self) == numbers(other)
     }

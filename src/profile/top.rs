@@ -29,10 +29,7 @@ pub enum Kept {
     Text(String),
     /// A fixed-width Arrow value (decimal, timestamp, date, time, duration)
     /// by its raw integer, shown as Arrow displays its type.
-    Raw {
-        raw: i128,
-        shown_as: Arc<DataType>,
-    },
+    Raw { raw: i128, shown_as: Arc<DataType> },
 }
 
 impl Kept {
@@ -67,30 +64,18 @@ fn render_raw(raw: i128, data_type: &DataType) -> String {
         DataType::Date32 => show::<Date32Type>(i32::try_from(raw).ok(), data_type),
         DataType::Date64 => show::<Date64Type>(i64::try_from(raw).ok(), data_type),
         DataType::Timestamp(TimeUnit::Second, _) => show::<TimestampSecondType>(i64::try_from(raw).ok(), data_type),
-        DataType::Timestamp(TimeUnit::Millisecond, _) => {
-            show::<TimestampMillisecondType>(i64::try_from(raw).ok(), data_type)
-        }
-        DataType::Timestamp(TimeUnit::Microsecond, _) => {
-            show::<TimestampMicrosecondType>(i64::try_from(raw).ok(), data_type)
-        }
-        DataType::Timestamp(TimeUnit::Nanosecond, _) => {
-            show::<TimestampNanosecondType>(i64::try_from(raw).ok(), data_type)
-        }
+        DataType::Timestamp(TimeUnit::Millisecond, _) => show::<TimestampMillisecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Microsecond, _) => show::<TimestampMicrosecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Timestamp(TimeUnit::Nanosecond, _) => show::<TimestampNanosecondType>(i64::try_from(raw).ok(), data_type),
         DataType::Time32(TimeUnit::Second) => show::<Time32SecondType>(i32::try_from(raw).ok(), data_type),
         DataType::Time32(TimeUnit::Millisecond) => show::<Time32MillisecondType>(i32::try_from(raw).ok(), data_type),
         DataType::Time64(TimeUnit::Microsecond) => show::<Time64MicrosecondType>(i64::try_from(raw).ok(), data_type),
         DataType::Time64(TimeUnit::Nanosecond) => show::<Time64NanosecondType>(i64::try_from(raw).ok(), data_type),
         DataType::Duration(TimeUnit::Second) => show::<DurationSecondType>(i64::try_from(raw).ok(), data_type),
-        DataType::Duration(TimeUnit::Millisecond) => {
-            show::<DurationMillisecondType>(i64::try_from(raw).ok(), data_type)
-        }
-        DataType::Duration(TimeUnit::Microsecond) => {
-            show::<DurationMicrosecondType>(i64::try_from(raw).ok(), data_type)
-        }
+        DataType::Duration(TimeUnit::Millisecond) => show::<DurationMillisecondType>(i64::try_from(raw).ok(), data_type),
+        DataType::Duration(TimeUnit::Microsecond) => show::<DurationMicrosecondType>(i64::try_from(raw).ok(), data_type),
         DataType::Duration(TimeUnit::Nanosecond) => show::<DurationNanosecondType>(i64::try_from(raw).ok(), data_type),
-        DataType::Interval(IntervalUnit::YearMonth) => {
-            show::<IntervalYearMonthType>(i32::try_from(raw).ok(), data_type)
-        }
+        DataType::Interval(IntervalUnit::YearMonth) => show::<IntervalYearMonthType>(i32::try_from(raw).ok(), data_type),
         _ => None,
     };
     shown
@@ -234,8 +219,7 @@ impl TopValues {
 
     /// The `n` most frequent values, most frequent first (ties by value).
     pub fn top(&self, n: usize) -> Vec<TopValue> {
-        let mut all: Vec<TopValue> =
-            self.counts.values().map(|(c, v)| TopValue { value: v.render(), count: *c }).collect();
+        let mut all: Vec<TopValue> = self.counts.values().map(|(c, v)| TopValue { value: v.render(), count: *c }).collect();
         all.sort_by(|a, b| b.count.cmp(&a.count).then_with(|| a.value.cmp(&b.value)));
         all.truncate(n);
         all
@@ -281,23 +265,14 @@ mod tests {
         assert_eq!(shown(-5, DataType::Decimal64(10, 3)), "-0.005");
         assert_eq!(shown(1, DataType::Date32), "1970-01-02");
         assert_eq!(shown(3661, DataType::Time32(TimeUnit::Second)), "01:01:01");
-        assert_eq!(
-            shown(1_500_000, DataType::Timestamp(TimeUnit::Microsecond, Some("UTC".into()))),
-            "1970-01-01T00:00:01.500Z"
-        );
+        assert_eq!(shown(1_500_000, DataType::Timestamp(TimeUnit::Microsecond, Some("UTC".into()))), "1970-01-01T00:00:01.500Z");
         assert_eq!(shown(1_500, DataType::Timestamp(TimeUnit::Millisecond, None)), "1970-01-01T00:00:01.500");
-        assert_eq!(
-            shown(0, DataType::Timestamp(TimeUnit::Second, Some("Europe/Paris".into()))),
-            "1970-01-01T00:00:00Z"
-        );
+        assert_eq!(shown(0, DataType::Timestamp(TimeUnit::Second, Some("Europe/Paris".into()))), "1970-01-01T00:00:00Z");
         assert_eq!(shown(0, DataType::Timestamp(TimeUnit::Second, Some("+02:00".into()))), "1970-01-01T02:00:00+02:00");
         assert_eq!(shown(7, DataType::Duration(TimeUnit::Second)), "PT7S");
         // A raw integer that does not fit the type is shown as the integer.
         assert_eq!(shown(1 << 40, DataType::Date32), "1099511627776");
-        assert_eq!(
-            shown(i64::MAX.into(), DataType::Timestamp(TimeUnit::Second, Some("UTC".into()))),
-            i64::MAX.to_string()
-        );
+        assert_eq!(shown(i64::MAX.into(), DataType::Timestamp(TimeUnit::Second, Some("UTC".into()))), i64::MAX.to_string());
     }
 
     #[test]
@@ -356,4 +331,5 @@ mod tests {
         assert!(!late.is_exact(), "past the new limit: summarised at once");
         assert!(late.entries().count() <= 100);
     }
+
 }

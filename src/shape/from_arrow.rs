@@ -142,26 +142,22 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         }
         List(field) => {
             let l = array.as_list::<i32>();
-            let ranges =
-                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeList(field) => {
             let l = array.as_list::<i64>();
-            let ranges =
-                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_length(i) as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         ListView(field) => {
             let l = array.as_list_view::<i32>();
-            let ranges =
-                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         LargeListView(field) => {
             let l = array.as_list_view::<i64>();
-            let ranges =
-                positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
+            let ranges = positions(present, l.len()).map(|i| (l.value_offsets()[i] as usize, l.value_sizes()[i] as usize));
             observe_list(node, n, field, l.values().as_ref(), ranges);
         }
         FixedSizeList(field, size) => {
@@ -173,9 +169,8 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Map(_, _) => {
             node.kinds.add(Kind::Map, n);
             let m = array.as_map();
-            let ranges: Vec<(usize, usize)> = positions(present, m.len())
-                .map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize))
-                .collect();
+            let ranges: Vec<(usize, usize)> =
+                positions(present, m.len()).map(|i| (m.value_offsets()[i] as usize, m.value_length(i) as usize)).collect();
             if let Some(stats) = node.stats.as_deref_mut() {
                 ranges.iter().for_each(|&(_, len)| stats.add_list_length(len));
             }
@@ -184,16 +179,8 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
             if let DataType::Struct(kv) = entries.data_type()
                 && kv.len() == 2
             {
-                observe_array(
-                    child_for(node, kv[0].name(), &kv[0], Role::MapKey),
-                    entries.column(0).as_ref(),
-                    Some(&mask),
-                );
-                observe_array(
-                    child_for(node, kv[1].name(), &kv[1], Role::MapValue),
-                    entries.column(1).as_ref(),
-                    Some(&mask),
-                );
+                observe_array(child_for(node, kv[0].name(), &kv[0], Role::MapKey), entries.column(0).as_ref(), Some(&mask));
+                observe_array(child_for(node, kv[1].name(), &kv[1], Role::MapValue), entries.column(1).as_ref(), Some(&mask));
             }
         }
         Union(fields, mode) => {
@@ -258,39 +245,19 @@ fn observe_present(node: &mut FieldShape, array: &dyn Array, present: Option<&Bo
         Date32 => observe_primitive_raw::<Date32Type>(node, Kind::Date, n, array, present),
         Date64 => observe_primitive_raw::<Date64Type>(node, Kind::Date, n, array, present),
         Time32(TimeUnit::Second) => observe_primitive_raw::<Time32SecondType>(node, Kind::Time, n, array, present),
-        Time32(TimeUnit::Millisecond) => {
-            observe_primitive_raw::<Time32MillisecondType>(node, Kind::Time, n, array, present)
-        }
-        Time64(TimeUnit::Microsecond) => {
-            observe_primitive_raw::<Time64MicrosecondType>(node, Kind::Time, n, array, present)
-        }
-        Time64(TimeUnit::Nanosecond) => {
-            observe_primitive_raw::<Time64NanosecondType>(node, Kind::Time, n, array, present)
-        }
-        Duration(TimeUnit::Second) => {
-            observe_primitive_raw::<DurationSecondType>(node, Kind::Duration, n, array, present)
-        }
-        Duration(TimeUnit::Millisecond) => {
-            observe_primitive_raw::<DurationMillisecondType>(node, Kind::Duration, n, array, present)
-        }
-        Duration(TimeUnit::Microsecond) => {
-            observe_primitive_raw::<DurationMicrosecondType>(node, Kind::Duration, n, array, present)
-        }
-        Duration(TimeUnit::Nanosecond) => {
-            observe_primitive_raw::<DurationNanosecondType>(node, Kind::Duration, n, array, present)
-        }
+        Time32(TimeUnit::Millisecond) => observe_primitive_raw::<Time32MillisecondType>(node, Kind::Time, n, array, present),
+        Time64(TimeUnit::Microsecond) => observe_primitive_raw::<Time64MicrosecondType>(node, Kind::Time, n, array, present),
+        Time64(TimeUnit::Nanosecond) => observe_primitive_raw::<Time64NanosecondType>(node, Kind::Time, n, array, present),
+        Duration(TimeUnit::Second) => observe_primitive_raw::<DurationSecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Millisecond) => observe_primitive_raw::<DurationMillisecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Microsecond) => observe_primitive_raw::<DurationMicrosecondType>(node, Kind::Duration, n, array, present),
+        Duration(TimeUnit::Nanosecond) => observe_primitive_raw::<DurationNanosecondType>(node, Kind::Duration, n, array, present),
         Timestamp(unit, zone) => {
             let (scale, raw) = match unit {
                 arrow_schema::TimeUnit::Second => (1, array.as_primitive::<TimestampSecondType>().values().clone()),
-                arrow_schema::TimeUnit::Millisecond => {
-                    (1_000, array.as_primitive::<TimestampMillisecondType>().values().clone())
-                }
-                arrow_schema::TimeUnit::Microsecond => {
-                    (1_000_000, array.as_primitive::<TimestampMicrosecondType>().values().clone())
-                }
-                arrow_schema::TimeUnit::Nanosecond => {
-                    (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone())
-                }
+                arrow_schema::TimeUnit::Millisecond => (1_000, array.as_primitive::<TimestampMillisecondType>().values().clone()),
+                arrow_schema::TimeUnit::Microsecond => (1_000_000, array.as_primitive::<TimestampMicrosecondType>().values().clone()),
+                arrow_schema::TimeUnit::Nanosecond => (1_000_000_000, array.as_primitive::<TimestampNanosecondType>().values().clone()),
             };
             if let Some(stats) = node.stats.as_deref_mut() {
                 let shown_as = Arc::new(array.data_type().clone());
@@ -361,13 +328,8 @@ fn observe_raw<'a>(
 
 /// Fixed-width primitives (temporal) by their native bytes, kept as raw
 /// integers and rendered only if reported.
-fn observe_primitive_raw<T>(
-    node: &mut FieldShape,
-    kind: Kind,
-    n: u64,
-    array: &dyn Array,
-    present: Option<&BooleanBuffer>,
-) where
+fn observe_primitive_raw<T>(node: &mut FieldShape, kind: Kind, n: u64, array: &dyn Array, present: Option<&BooleanBuffer>)
+where
     T: ArrowPrimitiveType,
     T::Native: Into<i128>,
 {
@@ -403,13 +365,7 @@ where
 }
 
 /// A list's elements: the (offset, length) ranges of its present values.
-fn observe_list(
-    node: &mut FieldShape,
-    n: u64,
-    field: &Field,
-    values: &dyn Array,
-    ranges: impl Iterator<Item = (usize, usize)>,
-) {
+fn observe_list(node: &mut FieldShape, n: u64, field: &Field, values: &dyn Array, ranges: impl Iterator<Item = (usize, usize)>) {
     node.kinds.add(Kind::Array, n);
     let ranges: Vec<(usize, usize)> = ranges.collect();
     if let Some(stats) = node.stats.as_deref_mut() {
@@ -441,7 +397,13 @@ where
     let capacity = if stats.is_some() { a.len() } else { 0 };
     let mut numbers = Vec::with_capacity(capacity);
     let mut hashes = Vec::with_capacity(capacity);
-    for i in positions(present, a.len()) {
+    // Under a mask the positions are kept: the values kept as top values need them.
+    let at: Option<Vec<usize>> = present.map(|m| m.set_indices().collect());
+    let each: Box<dyn Iterator<Item = usize>> = match &at {
+        Some(at) => Box::new(at.iter().copied()),
+        None => Box::new(0..a.len()),
+    };
+    for i in each {
         let v: i128 = values[i].into();
         lo = lo.min(v);
         hi = hi.max(v);
@@ -452,8 +414,6 @@ where
         }
     }
     if let Some(stats) = stats {
-        // Positions are needed only for the few values kept, and only under a mask.
-        let at: Option<Vec<usize>> = present.map(|m| m.set_indices().collect());
         stats.add_scalars(&hashes, |j| Kept::Int(values[at.as_ref().map_or(j, |at| at[j])].into()));
         stats.add_numbers(&numbers);
     }
