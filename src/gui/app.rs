@@ -87,7 +87,11 @@ impl PlumblineApp {
     /// True while a source is being read, Rows waits for rows or a fit
     /// runs (tests wait on this).
     pub fn is_busy(&self) -> bool {
-        self.job.is_some() || self.compare_job.is_some() || self.rows.is_waiting() || self.fit.is_running()
+        self.job.is_some()
+            || self.compare_job.is_some()
+            || self.rows.is_waiting()
+            || self.fit.is_running()
+            || self.record_types.is_writing()
     }
 
     /// Writes the settings file, if there is one. A failure is only
@@ -139,7 +143,7 @@ impl PlumblineApp {
             Intent::CheckDefinition(checked) => {
                 if let Some(scan) = &self.state.scan {
                     let ctx = self.ctx.clone();
-                    self.fit.start(checked, scan, self.state.generation, move || ctx.request_repaint());
+                    self.fit.start(checked, scan.clone(), self.state.generation, move || ctx.request_repaint());
                     self.state.area = Area::Fit;
                 }
             }
@@ -298,7 +302,7 @@ impl PlumblineApp {
                 Area::Findings => self.findings.show(ui, &self.state),
                 Area::RecordTypes => self.record_types.show(ui, &self.state),
                 Area::Fit => {
-                    let generated = self.record_types.readable_code(&self.state);
+                    let generated = self.record_types.readable_code(&self.state, ui.ctx());
                     self.fit.show(ui, &self.state, generated)
                 }
                 Area::Compare => self.compare.show(ui, &self.state),

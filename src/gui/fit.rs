@@ -3,6 +3,7 @@
 //! listed with their rows, each jumping to its field or its rows.
 
 use std::path::PathBuf;
+use std::sync::Arc;
 use std::sync::atomic::AtomicBool;
 use std::sync::mpsc::{Receiver, channel};
 
@@ -55,9 +56,8 @@ impl FitArea {
     }
 
     /// Starts checking `checked` against the rows of `scan`.
-    pub fn start(&mut self, checked: Checked, scan: &Scan, generation: u64, wake: impl Fn() + Send + 'static) {
+    pub fn start(&mut self, checked: Checked, scan: Arc<Scan>, generation: u64, wake: impl Fn() + Send + 'static) {
         let (tx, rx) = channel();
-        let scan = scan.clone();
         let what = checked.clone();
         std::thread::Builder::new()
             .name("plumbline-fit".into())

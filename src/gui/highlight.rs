@@ -2,6 +2,8 @@
 //! literals, keywords and type names, enough to read the code at a glance.
 //! It only colours; it never changes the text.
 
+use std::ops::Range;
+
 use eframe::egui::text::{LayoutJob, TextFormat};
 use eframe::egui::{Color32, FontId, Visuals};
 
@@ -117,13 +119,50 @@ fn colour(token: Token, visuals: &Visuals) -> Color32 {
     }
 }
 
-/// The code as a coloured layout in the monospace font.
-pub fn layout(code: &str, lang: Lang, visuals: &Visuals, font: FontId) -> LayoutJob {
-    let mut job = LayoutJob::default();
-    for (range, token) in tokens(code, lang) {
-        job.append(&code[range], 0.0, TextFormat::simple(font.clone(), colour(token, visuals)));
+/// Code split into lines with its tokens, so that only the lines on screen
+/// are laid out (long code would otherwise cost a whole frame to lay out).
+pub struct Lines {
+    code: String,
+    /// Each line's byte range, without its line break.
+    lines: Vec<Range<usize>>,
+    tokens: Vec<(Range<usize>, Token)>,
+    /// The most characters on one line, for the width of the view.
+    pub widest: usize,
+}
+
+impl Lines {
+    pub fn new(code: String, lang: Lang) -> Self {
+        let tokens = tokens(&code, lang);
+        let mut lines = Vec::new();
+        let mut start = 0;
+        for line in code.split('\n') {
+            lines.push(start..start + line.len());
+            start += line.len() + 1;
+        }
+        let widest = lines.iter().map(|r| code[r.clone()].chars().count()).max().unwrap_or(0);
+        Lines { code, lines, tokens, widest }
     }
-    job
+
+    pub fn len(&self) -> usize {
+        self.lines.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.lines.is_empty()
+    }
+
+    /// Line `index` coloured in the monospace font; a token that spans
+    /// lines (a doc string) keeps its colour on each of them.
+    pub fn line(&self, index: usize, visuals: &Visuals, font: &FontId) -> LayoutJob {
+        let line = self.lines[index].clone();
+        let mut job = LayoutJob::default();
+        let first = self.tokens.partition_point(|(r, _)| r.end <= line.start);
+        for (range, token) in self.tokens[first..].iter().take_while(|(r, _)| r.start < line.end) {
+            let piece = range.start.max(line.start)..range.end.min(line.end);
+            job.append(&self.code[piece], 0.0, TextFormat::simple(font.clone(), colour(*token, visuals)));
+        }
+        job
+    }
 }
 
 #[cfg(test)]
@@ -145,6 +184,24 @@ mod tests {
         let py = spans("name: str  # a comment\n\"\"\"doc \"quoted\" \"\"\"", Lang::Python);
         assert_eq!(py.last(), Some(&("\"\"\"doc \"quoted\" \"\"\"", Token::Text)));
         assert!(py.contains(&("# a comment", Token::Comment)));
+    }
+
+    #[test]
+    fn lines_hold_the_code_line_by_line_with_their_colours() {
+        let code = "name: str\n\"\"\"two\nlines\"\"\"\n\nünï # é".to_string();
+        let lines = Lines::new(code.clone(), Lang::Python);
+        let font = FontId::monospace(12.0);
+        let visuals = Visuals::dark();
+        let texts: Vec<String> = (0..lines.len()).map(|i| lines.line(i, &visuals, &font).text).collect();
+        assert_eq!(texts.join("\n"), code);
+        assert_eq!(lines.len(), 5);
+        assert_eq!(lines.widest, 9, "the first line, in characters");
+        // The doc string's second line is coloured as text, like its first.
+        let text_colour = colour(Token::Text, &visuals);
+        let second = lines.line(2, &visuals, &font);
+        assert!(second.sections.iter().all(|s| s.format.color == text_colour), "{:?}", second.sections);
+        let last = lines.line(4, &visuals, &font);
+        assert_eq!(last.sections.last().map(|s| s.format.color), Some(colour(Token::Comment, &visuals)));
     }
 
     #[test]

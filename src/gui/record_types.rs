@@ -1,13 +1,12 @@
 //! Record types: pick a target and the generator's options, read the
 //! highlighted code, copy or save it, and see how it fits the rows read.
 
-use std::sync::Arc;
+use std::sync::{Arc, OnceLock};
 
 use eframe::egui;
-use eframe::egui::text::LayoutJob;
 
 use super::fit::Checked;
-use super::highlight;
+use super::highlight::Lines;
 use crate::fit::DefinitionLang;
 use super::state::{Intent, State};
 use crate::format::group_digits;
@@ -20,15 +19,17 @@ pub struct RecordTypes {
     pub time: TimeChoice,
     /// The root type's name; empty means the name from the file.
     pub root: String,
-    /// Code generated for (scan generation, choices), kept until either changes.
-    cache: Option<(CodeKey, Generated)>,
-    /// That code laid out in colour, for the theme (dark or not) it was made for.
-    coloured: Option<((CodeKey, bool), Arc<LayoutJob>)>,
+    /// The code for (scan generation, choices), written on its own thread
+    /// and kept until either changes.
+    code: Option<(CodeKey, Arc<OnceLock<Written>>)>,
 }
 
 type CodeKey = (u64, Choices);
 
 type Choices = (Lang, Optionality, MixedChoice, TimeChoice, String);
+
+/// Generated code and its lines for the view, or why there is none.
+type Written = Result<(Generated, Lines), String>;
 
 impl Default for RecordTypes {
     fn default() -> Self {
@@ -38,51 +39,84 @@ impl Default for RecordTypes {
             mixed: MixedChoice::default(),
             time: TimeChoice::default(),
             root: String::new(),
-            cache: None,
-            coloured: None,
+            code: None,
         }
     }
 }
 
 impl RecordTypes {
-    /// The code for the current scan and choices (generated once for each).
-    pub fn generated(&mut self, state: &State) -> Option<&Generated> {
-        let scan = state.scan.as_deref()?;
+    /// True while code is being written (tests wait on this).
+    pub fn is_writing(&self) -> bool {
+        self.code.as_ref().is_some_and(|(_, cell)| cell.get().is_none())
+    }
+
+    /// The code for the current scan and choices, once written. Writing
+    /// starts on its own thread the first time they are asked for: on a wide
+    /// shape it takes longer than a frame may.
+    fn written(&mut self, state: &State, ctx: &egui::Context) -> Option<&Written> {
+        let scan = state.scan.as_ref()?;
         let key = (state.generation, (self.lang, self.optional, self.mixed, self.time, self.root.clone()));
-        if self.cache.as_ref().is_none_or(|(k, _)| *k != key) {
+        if self.code.as_ref().is_none_or(|(k, _)| *k != key) {
             let root = if self.root.trim().is_empty() { types::default_root(scan) } else { self.root.trim().to_string() };
             let options = TypeOptions { root, optional: self.optional, mixed: self.mixed, time: self.time };
-            self.cache = Some((key, types::generate(scan, self.lang, &options)));
+            let cell = Arc::new(OnceLock::new());
+            let (scan, lang, done, ctx) = (scan.clone(), self.lang, cell.clone(), ctx.clone());
+            std::thread::Builder::new()
+                .name("plumbline-types".into())
+                .spawn(move || {
+                    let written = std::panic::catch_unwind(move || {
+                        let generated = types::generate(&scan, lang, &options);
+                        let lines = Lines::new(generated.code.clone(), lang);
+                        (generated, lines)
+                    })
+                    .map_err(|_| "writing the record types stopped on an internal error; the window keeps working".to_string());
+                    let _ = done.set(written);
+                    ctx.request_repaint();
+                })
+                .expect("spawning a thread");
+            self.code = Some((key, cell));
         }
-        self.cache.as_ref().map(|(_, g)| g)
+        self.code.as_ref().and_then(|(_, cell)| cell.get())
     }
 
     /// The code shown and the language to read it back in, for the targets
-    /// Fit can read.
-    pub fn readable_code(&mut self, state: &State) -> Option<(String, DefinitionLang)> {
+    /// Fit can read (None until it is written).
+    pub fn readable_code(&mut self, state: &State, ctx: &egui::Context) -> Option<(String, DefinitionLang)> {
         let lang = readable(self.lang)?;
-        self.generated(state).map(|g| (g.code.clone(), lang))
+        match self.written(state, ctx)? {
+            Ok((generated, _)) => Some((generated.code.clone(), lang)),
+            Err(_) => None,
+        }
     }
 
     pub fn show(&mut self, ui: &mut egui::Ui, state: &State) -> Vec<Intent> {
         let mut intents = Vec::new();
-        let Some(scan) = state.scan.as_deref() else {
+        let Some(scan) = state.scan.clone() else {
             ui.weak("Record types appear here once a source is open.");
             return intents;
         };
-        self.choices(ui, scan);
+        self.choices(ui, &scan);
         let lang = self.lang;
-        if self.generated(state).is_none() {
-            return intents;
-        }
-        let job = self.highlighted(ui);
-        let Some((_, generated)) = &self.cache else { return intents };
+        let (generated, lines) = match self.written(state, ui.ctx()) {
+            None => {
+                ui.horizontal(|ui| {
+                    ui.spinner();
+                    ui.label(format!("Writing the {} types…", lang.name()));
+                });
+                return intents;
+            }
+            Some(Err(e)) => {
+                ui.colored_label(ui.visuals().error_fg_color, e);
+                return intents;
+            }
+            Some(Ok(written)) => written,
+        };
         ui.horizontal(|ui| {
             if ui.button("Copy").on_hover_text("Copy the code to the clipboard").clicked() {
                 ui.ctx().copy_text(generated.code.clone());
             }
             if ui.button("Save…").on_hover_text("Save the code to a file").clicked() {
-                let stem = types::default_root(scan);
+                let stem = types::default_root(&scan);
                 intents.push(Intent::SaveText {
                     text: generated.code.clone(),
                     file_name: format!("{stem}.{}", lang.extension()),
@@ -95,36 +129,14 @@ impl RecordTypes {
                 intents.push(Intent::CheckDefinition(Checked::Generated { code: generated.code.clone(), lang: reader }));
             }
             ui.separator();
-            ui.label(fit_line(scan, generated, lang));
+            ui.label(fit_line(&scan, generated, lang));
         });
         for w in &generated.warnings {
             ui.colored_label(ui.visuals().warn_fg_color, format!("▲ {w}"));
         }
         ui.separator();
-        egui::ScrollArea::both().auto_shrink([false, false]).id_salt("record_types_code").show(ui, |ui| {
-            ui.add(egui::Label::new(job).selectable(true).extend());
-        });
+        code_view(ui, lines);
         intents
-    }
-
-    /// The cached code, coloured for the current theme (laid out again
-    /// only when the code or the theme changes, not every frame).
-    fn highlighted(&mut self, ui: &egui::Ui) -> Arc<LayoutJob> {
-        let dark = ui.visuals().dark_mode;
-        let code_key = self.cache.as_ref().map(|(k, _)| k.clone());
-        if let Some(((k, d), job)) = &self.coloured
-            && Some(k) == code_key.as_ref()
-            && *d == dark
-        {
-            return job.clone();
-        }
-        let code = self.cache.as_ref().map_or("", |(_, g)| g.code.as_str());
-        let font = egui::TextStyle::Monospace.resolve(ui.style());
-        let job = Arc::new(highlight::layout(code, self.lang, ui.visuals(), font));
-        if let Some(key) = code_key {
-            self.coloured = Some(((key, dark), job.clone()));
-        }
-        job
     }
 
     fn choices(&mut self, ui: &mut egui::Ui, scan: &crate::scan::Scan) {
@@ -153,6 +165,28 @@ impl RecordTypes {
             }
         });
     }
+}
+
+/// The code, coloured, laying out only the lines in view.
+fn code_view(ui: &mut egui::Ui, lines: &Lines) {
+    let font = egui::TextStyle::Monospace.resolve(ui.style());
+    let row_height = ui.ctx().fonts_mut(|f| f.row_height(&font));
+    let char_width = ui.ctx().fonts_mut(|f| f.glyph_width(&font, 'M'));
+    egui::ScrollArea::both().auto_shrink([false, false]).id_salt("record_types_code").show_rows(
+        ui,
+        row_height,
+        lines.len(),
+        |ui, in_view| {
+            ui.spacing_mut().item_spacing.y = 0.0;
+            // The widest line sets the width, seen or not, so the view
+            // does not widen and narrow while it scrolls.
+            ui.set_min_width(char_width * lines.widest as f32);
+            for index in in_view {
+                let job = lines.line(index, ui.visuals(), &font);
+                ui.add(egui::Label::new(job).selectable(true).extend());
+            }
+        },
+    );
 }
 
 /// The definition language a target's code is read back in, if any.

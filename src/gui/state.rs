@@ -3,6 +3,7 @@
 
 use std::collections::HashMap;
 use std::path::PathBuf;
+use std::sync::Arc;
 
 use crate::report::{FieldEntry, Report};
 use crate::scan::{Coverage, Scan};
@@ -65,7 +66,8 @@ impl Area {
 
 #[derive(Default)]
 pub struct State {
-    pub scan: Option<Box<Scan>>,
+    /// Shared with the threads that work on it (record types, Fit).
+    pub scan: Option<Arc<Scan>>,
     /// The scan's statistics as the report states them, built once per scan.
     pub report: Option<Report>,
     /// Counts the scans shown, so areas know when to rebuild what they cache.
@@ -126,7 +128,7 @@ impl State {
         // The whole read after a first look of the same source keeps what
         // the user chose meanwhile.
         let continues = self.showing_first_look_of(&scan.info.path);
-        self.scan = Some(scan);
+        self.scan = Some(Arc::from(scan));
         self.generation += 1;
         if !continues {
             self.selected = self.select_when_read.take();
