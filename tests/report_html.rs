@@ -107,3 +107,21 @@ fn printing_keeps_tables_and_charts_whole_without_a_page_per_field() {
     assert!(print.contains("table,svg,.finding{break-inside:avoid}"), "{print}");
     assert!(print.contains("h2,h3{break-after:avoid}"), "{print}");
 }
+
+#[test]
+fn a_field_of_distinct_values_says_no_value_stands_out() {
+    // 30,000 distinct ids: past the exact top values, so summarised; the
+    // summary keeps no value, as none occurs more than its bound.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ids.jsonl");
+    let lines: String = (0..30_000).map(|i| format!("{{\"id\":{i}}}\n")).collect();
+    std::fs::write(&path, lines).unwrap();
+    let (report, html) = page(&path, ReportOptions::default());
+    let stats = report.fields[0].stats.as_ref().unwrap();
+    assert_eq!(stats.top.as_deref(), Some(&[][..]));
+    assert_eq!(stats.top_exact, Some(false));
+    let bound = stats.top_max_undercount.unwrap();
+    assert_eq!(bound, 30_000 / (plumbline::profile::top::COUNTERS as u64 + 1));
+    let text: String = html.root_element().text().collect();
+    assert!(text.contains(&report::no_value_stands_out(bound)), "{text}");
+}

@@ -68,6 +68,13 @@ fn show_field(ui: &mut egui::Ui, field: &FieldEntry) -> Option<RowFilter> {
                 },
             );
         }
+        if let (Some(top), Some(bound)) = (&stats.top, stats.top_max_undercount)
+            && top.is_empty()
+        {
+            section(ui, "Top values", |ui| {
+                ui.label(crate::report::no_value_stands_out(bound));
+            });
+        }
         if let Some(top) = stats.top.as_ref().filter(|t| !t.is_empty()) {
             section(ui, "Top values", |ui| {
                 // A list of values seen once each says nothing about frequency.

@@ -9,12 +9,11 @@
 use std::collections::HashSet;
 use std::hash::{BuildHasherDefault, Hasher};
 
-use hyperloglogplus::{HyperLogLog, HyperLogLogPlus};
+use super::hll::Sketch;
+pub use super::hll::PRECISION;
 
 /// Distinct values counted exactly before switching to the sketch.
 pub const EXACT_BUDGET: usize = 100_000;
-/// HyperLogLog++ precision: m = 2^14 registers (12 KiB dense).
-pub const PRECISION: u8 = 14;
 
 /// Relative standard error of the estimate, 1.04 / √m (Flajolet et al. 2007).
 pub fn standard_error() -> f64 {
@@ -44,7 +43,7 @@ type Build = BuildHasherDefault<PassThrough>;
 #[derive(Clone)]
 enum State {
     Exact(HashSet<u64, Build>),
-    Sketch(Box<HyperLogLogPlus<u64, Build>>),
+    Sketch(Box<Sketch>),
     /// A count read back from a report; values added later are not counted.
     Reported(DistinctCount),
 }
@@ -80,9 +79,6 @@ impl Default for Distinct {
     }
 }
 
-fn new_sketch() -> Box<HyperLogLogPlus<u64, Build>> {
-    Box::new(HyperLogLogPlus::new(PRECISION, Build::default()).expect("precision within 4..=18"))
-}
 
 impl Distinct {
     pub fn with_budget(budget: usize) -> Self {
@@ -102,6 +98,17 @@ impl Distinct {
         Distinct { state: State::Reported(count), budget: EXACT_BUDGET }
     }
 
+    /// Starts as a copy of `merged`'s sketch when it has one (see
+    /// [`super::field::FieldStats::start_past`]): the part's values are
+    /// then added to what is already known, and merging back is a union.
+    pub fn start_past(&mut self, merged: &Distinct) {
+        if let (State::Exact(mine), State::Sketch(theirs)) = (&self.state, &merged.state)
+            && mine.is_empty()
+        {
+            self.state = State::Sketch(theirs.clone());
+        }
+    }
+
     /// Adds a value by its 64-bit hash (see [`hash_bytes`]).
     pub fn add_hash(&mut self, hash: u64) {
         match &mut self.state {
@@ -111,17 +118,18 @@ impl Distinct {
                     self.to_sketch();
                 }
             }
-            State::Sketch(sketch) => sketch.insert(&hash),
+            State::Sketch(sketch) => sketch.insert(hash),
             State::Reported(_) => {}
         }
     }
 
     fn to_sketch(&mut self) {
         if let State::Exact(set) = &self.state {
-            let mut sketch = new_sketch();
-            for h in set {
+            let mut sketch = Box::<Sketch>::default();
+            for &h in set {
                 sketch.insert(h);
             }
+            sketch.use_front_once_dense();
             self.state = State::Sketch(sketch);
         }
     }
@@ -137,13 +145,11 @@ impl Distinct {
             (State::Exact(_), State::Sketch(theirs)) => {
                 let mine = std::mem::replace(&mut self.state, State::Sketch(theirs.clone()));
                 if let (State::Exact(set), State::Sketch(sketch)) = (mine, &mut self.state) {
-                    set.iter().for_each(|h| sketch.insert(h));
+                    set.iter().for_each(|&h| sketch.insert(h));
                 }
             }
-            (State::Sketch(mine), State::Exact(theirs)) => theirs.iter().for_each(|h| mine.insert(h)),
-            (State::Sketch(mine), State::Sketch(theirs)) => {
-                mine.merge(theirs.as_ref()).expect("same precision");
-            }
+            (State::Sketch(mine), State::Exact(theirs)) => theirs.iter().for_each(|&h| mine.insert(h)),
+            (State::Sketch(mine), State::Sketch(theirs)) => mine.merge(theirs),
             // Reports are read, not merged: a reported count stays as stated.
             (State::Reported(_), _) | (_, State::Reported(_)) => {}
         }
@@ -153,8 +159,7 @@ impl Distinct {
         match &self.state {
             State::Exact(set) => DistinctCount { value: set.len() as u64, exact: true, standard_error: 0.0 },
             State::Sketch(sketch) => {
-                // `count` needs `&mut` (it folds the sparse buffer), so count a copy.
-                let estimate = sketch.as_ref().clone().count();
+                let estimate = sketch.count();
                 DistinctCount { value: estimate.round() as u64, exact: false, standard_error: standard_error() }
             }
             State::Reported(count) => *count,

@@ -53,14 +53,19 @@ impl FewValues {
     /// Counts a finite value; false once more than `limit` distinct values
     /// have been seen (the caller then moves them to the sketch).
     pub fn add(&mut self, x: f64, limit: usize) -> bool {
-        self.add_count(x, 1);
+        self.add_repeated(x, 1, limit)
+    }
+
+    /// Counts `count` copies of a finite value, as [`Self::add`] does one.
+    pub fn add_repeated(&mut self, x: f64, count: u64, limit: usize) -> bool {
+        self.add_count(x, count);
         self.distinct() <= limit
     }
 
     fn add_count(&mut self, x: f64, count: u64) {
         self.total += count;
         // -0.0 and 0.0 are one value (both land on slot 0).
-        if (0.0..SMALL as f64).contains(&x) && x.fract() == 0.0 {
+        if (0.0..SMALL as f64).contains(&x) && (x as usize) as f64 == x {
             if self.small.is_empty() {
                 self.small = vec![0; SMALL];
             }

@@ -3,10 +3,11 @@
 use super::budget::Budget;
 use super::distinct::{Distinct, DistinctCount};
 use super::numbers::NumberStats;
-use super::tally;
+use super::tally::{self, Counted};
 use super::text::TextStats;
 use super::top::{Kept, TopValues};
-use crate::shape::strings::Form;
+use crate::shape::strings::{Form, StringForms};
+use std::ops::Range;
 use crate::value::truncate_chars;
 
 /// Characters kept of a top value as shown.
@@ -97,29 +98,104 @@ impl FieldStats {
 
     /// A run of scalar values by their hashes, in order; `keep(i)` gives the
     /// i-th value. Each distinct value of the run reaches the distinct set and
-    /// top values once, with its count, where that pays (see [`tally`]): the
-    /// same counts as adding them one by one.
+    /// top values once, with its count (see [`tally`]): the same distinct
+    /// count as adding them one by one, and top values within the same bound.
     pub fn add_scalars(&mut self, hashes: &[u64], keep: impl Fn(usize) -> Kept) {
-        let counted = tally::each_distinct(hashes, |c| {
-            self.distinct.add_hash(c.hash);
-            self.top.add_count(c.hash, c.count, || shown(keep(c.first)));
+        self.add_scalars_then(hashes, keep, |_, _, _| {});
+    }
+
+    /// Like [`Self::add_scalars`], then `also(self, piece, run)` for each
+    /// piece of the hashes and its distinct values: for statistics of the
+    /// same values, which can then be fed a distinct value at a time with
+    /// its count where values repeat (see [`tally::repeats_enough`]).
+    pub fn add_scalars_then(
+        &mut self,
+        hashes: &[u64],
+        keep: impl Fn(usize) -> Kept,
+        mut also: impl FnMut(&mut Self, Range<usize>, &[Counted]),
+    ) {
+        tally::each_run(hashes, |piece, run| {
+            run.iter().for_each(|c| self.distinct.add_hash(c.hash));
+            self.top.add_run(run, |first| shown(keep(first)));
+            also(self, piece, run);
         });
-        if !counted {
-            for (i, &hash) in hashes.iter().enumerate() {
-                self.distinct.add_hash(hash);
-                self.top.add(hash, || shown(keep(i)));
+    }
+
+    /// A run of scalar values that are numbers: `hashes[i]` is the hash of
+    /// `numbers[i]` (none NaN; see [`Self::add_nan`]).
+    pub fn add_numeric_scalars(&mut self, hashes: &[u64], numbers: &[f64], keep: impl Fn(usize) -> Kept) {
+        debug_assert_eq!(hashes.len(), numbers.len());
+        self.add_scalars_then(hashes, keep, |stats, piece, run| {
+            if tally::repeats_enough(run.len(), piece.len()) {
+                let limit = stats.budget.sample;
+                let kept = stats.numbers.get_or_insert_with(|| NumberStats::with_limit(limit));
+                run.iter().for_each(|c| kept.add_count(numbers[c.first as usize], c.count.into()));
+            } else {
+                stats.add_numbers(&numbers[piece]);
+            }
+        });
+    }
+
+    /// `count` NaN values (kept apart from the numbers).
+    pub fn add_nan(&mut self, count: u64) {
+        if count > 0 {
+            let limit = self.budget.sample;
+            self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).nan += count;
+        }
+    }
+
+    /// A run of text values with their hashes, their forms counted in `forms`.
+    pub fn add_text_scalars(&mut self, hashes: &[u64], values: &[&str], forms: &mut StringForms) {
+        debug_assert_eq!(hashes.len(), values.len());
+        self.add_scalars_then(
+            hashes,
+            |i| Kept::Text(values[i].to_string()),
+            |stats, piece, run| {
+                if tally::repeats_enough(run.len(), piece.len()) {
+                    for c in run {
+                        let s = values[c.first as usize];
+                        let form = forms.observe_count(s, c.count.into());
+                        stats.add_text_count(s, form, c.count.into());
+                    }
+                } else {
+                    stats.add_texts(&values[piece], forms);
+                }
+            },
+        );
+    }
+
+    /// Text values one after another, their forms counted in `forms`.
+    fn add_texts(&mut self, values: &[&str], forms: &mut StringForms) {
+        let limit = self.budget.sample;
+        self.text.get_or_insert_with(|| TextStats::with_limit(limit)).add_all(values);
+        for s in values {
+            if forms.observe(s) == Some(Form::Timestamp)
+                && let Some(secs) = crate::time::rfc3339_seconds(s)
+            {
+                self.add_instant(secs);
             }
         }
     }
 
+    /// `count` occurrences of one scalar value.
+    pub fn add_scalar_count(&mut self, hash: u64, count: u64, keep: impl FnOnce() -> Kept) {
+        self.distinct.add_hash(hash);
+        self.top.add_count(hash, count, || shown(keep()));
+    }
+
     /// A text value and the form the Shape recognised in it.
     pub fn add_text(&mut self, s: &str, form: Option<Form>) {
+        self.add_text_count(s, form, 1);
+    }
+
+    /// `count` text values equal to `s`.
+    pub fn add_text_count(&mut self, s: &str, form: Option<Form>, count: u64) {
         let limit = self.budget.sample;
-        self.text.get_or_insert_with(|| TextStats::with_limit(limit)).add(s);
+        self.text.get_or_insert_with(|| TextStats::with_limit(limit)).add_count(s, count);
         if form == Some(Form::Timestamp)
             && let Some(secs) = crate::time::rfc3339_seconds(s)
         {
-            self.add_instant(secs);
+            self.add_instant_count(secs, count);
         }
     }
 
@@ -128,12 +204,23 @@ impl FieldStats {
         self.list_lengths.get_or_insert_with(|| NumberStats::with_limit(limit)).add(n as f64);
     }
 
+    /// The lengths of a run of lists or maps.
+    pub fn add_list_lengths(&mut self, lengths: impl Iterator<Item = usize>) {
+        let limit = self.budget.sample;
+        self.list_lengths.get_or_insert_with(|| NumberStats::with_limit(limit)).add_whole_numbers(lengths);
+    }
+
     /// One instant (JSON and CSV text, one value at a time).
     pub fn add_instant(&mut self, secs: i64) {
+        self.add_instant_count(secs, 1);
+    }
+
+    /// `count` equal instants.
+    pub fn add_instant_count(&mut self, secs: i64, count: u64) {
         let i = self.instants_spanning(secs, secs);
-        i.count += 1;
-        i.future += (secs > profile_started()) as u64;
-        i.seconds.add(secs as f64);
+        i.count += count;
+        i.future += count * (secs > profile_started()) as u64;
+        i.seconds.add_count(secs as f64, count);
     }
 
     /// The instants kept, widened to `lo..=hi`.
@@ -166,6 +253,16 @@ impl FieldStats {
         self.numbers.get_or_insert_with(|| NumberStats::with_limit(limit)).add_slice(xs);
     }
 
+    /// The instants of a piece of a run of scalars (`seconds[i]` of value
+    /// i), by distinct value where values repeat.
+    pub fn add_instants_by_run(&mut self, seconds: &[i64], piece: Range<usize>, run: &[Counted]) {
+        if tally::repeats_enough(run.len(), piece.len()) {
+            run.iter().for_each(|c| self.add_instant_count(seconds[c.first as usize], c.count.into()));
+        } else {
+            self.add_instants(&seconds[piece]);
+        }
+    }
+
     /// A run of instants, in epoch seconds (an Arrow array's present values).
     pub fn add_instants(&mut self, secs: &[i64]) {
         let (Some(&lo), Some(&hi)) = (secs.iter().min(), secs.iter().max()) else { return };
@@ -175,6 +272,30 @@ impl FieldStats {
         i.future += secs.iter().filter(|&&s| s > now).count() as u64;
         let as_f64: Vec<f64> = secs.iter().map(|&s| s as f64).collect();
         i.seconds.add_slice(&as_f64);
+    }
+
+    /// Starts past what `merged` (the same field's statistics from earlier
+    /// parts, which these will be merged into) has given up: a distinct set
+    /// that became a sketch starts as a copy of that sketch (a union, so
+    /// merging it back changes nothing), summarised top values start
+    /// summarised, numbers past their exact sample or few-values table go
+    /// straight to the quantile sketch.
+    pub fn start_past(&mut self, merged: &FieldStats) {
+        let limit = self.budget.sample;
+        self.distinct.start_past(&merged.distinct);
+        self.top.start_past(&merged.top);
+        for (mine, theirs) in [(&mut self.numbers, &merged.numbers), (&mut self.list_lengths, &merged.list_lengths)] {
+            if let Some(theirs) = theirs {
+                mine.get_or_insert_with(|| NumberStats::with_limit(limit)).start_past(theirs);
+            }
+        }
+        if let Some(theirs) = &merged.text {
+            self.text.get_or_insert_with(|| TextStats::with_limit(limit)).lengths.start_past(&theirs.lengths);
+        }
+        if let Some(theirs) = &merged.instants {
+            let mine = self.instants_spanning(theirs.min, theirs.max);
+            mine.seconds.start_past(&theirs.seconds);
+        }
     }
 
     pub fn merge(&mut self, other: &FieldStats) {

@@ -171,13 +171,12 @@ pub fn findings(field: &FieldShape) -> Vec<Finding> {
     if let Some(text) = &stats.text
         && text.padded > 0
     {
-        let padded: Vec<String> = stats
-            .top
-            .entries()
-            .filter(|(v, _)| v.trim() != *v && !v.is_empty())
-            .take(EXAMPLES)
-            .map(|(v, _)| v.to_string())
-            .collect();
+        // The most frequent first (ties by value), so the examples do not
+        // depend on the order values were counted in.
+        let mut padded: Vec<(String, u64)> =
+            stats.top.entries().filter(|(v, _)| v.trim() != *v && !v.is_empty()).collect();
+        padded.sort_by(|a, b| b.1.cmp(&a.1).then_with(|| a.0.cmp(&b.0)));
+        let padded: Vec<String> = padded.into_iter().take(EXAMPLES).map(|(v, _)| v).collect();
         out.push(Finding {
             kind: "padded_text",
             message: format!("{} values have leading or trailing whitespace", text.padded),
@@ -261,7 +260,7 @@ fn placeholders(stats: &crate::profile::field::FieldStats, present: u64, out: &m
     if found.is_empty() {
         return;
     }
-    found.sort_by(|a, b| b.1.cmp(&a.1));
+    found.sort_by(|a, b| b.1.cmp(&a.1).then_with(|| a.0.cmp(&b.0)));
     out.push(Finding {
         kind: "placeholder_values",
         message: format!(

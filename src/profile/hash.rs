@@ -9,15 +9,22 @@ const STRING: u64 = 2;
 const BOOL: u64 = 3;
 const OTHER: u64 = 4;
 
-/// An integer, hashed by value.
+/// An integer, hashed by value (by its 8 bytes when it fits 64 bits, which
+/// XXH3 hashes several times faster than 16).
 pub fn int(v: i128) -> u64 {
-    xxh3_64_with_seed(&v.to_le_bytes(), NUMBER)
+    match i64::try_from(v) {
+        Ok(narrow) => xxh3_64_with_seed(&narrow.to_le_bytes(), NUMBER),
+        Err(_) => xxh3_64_with_seed(&v.to_le_bytes(), NUMBER),
+    }
 }
 
 /// A float: integral values hash as the integer; -0.0 as 0.
 pub fn float(v: f64) -> u64 {
-    if v.fract() == 0.0 && v.abs() < 1e18 {
-        return int(v as i128);
+    // Below 1e18 the cast to i64 is exact for whole numbers (and avoids
+    // `f64::fract`, a library call on the baseline x86-64 target).
+    let whole = v as i64;
+    if v.abs() < 1e18 && whole as f64 == v {
+        return int(whole.into());
     }
     xxh3_64_with_seed(&v.to_bits().to_le_bytes(), NUMBER)
 }
@@ -51,5 +58,10 @@ mod tests {
         assert_ne!(float(1.5), float(2.5));
         assert_ne!(int(1), string("1"));
         assert_ne!(bool(true), int(1));
+        assert_eq!(float(-3.0), int(-3));
+        assert_eq!(float(1e17), int(100_000_000_000_000_000));
+        assert_ne!(float(0.5), float(-0.5));
+        // Past 64 bits the 16-byte form is hashed; both forms stay apart.
+        assert_ne!(int(i64::MAX as i128 + 1), int(i64::MAX as i128));
     }
 }

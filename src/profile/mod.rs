@@ -12,6 +12,7 @@ pub mod field;
 pub mod findings;
 pub mod hash;
 pub mod histogram;
+pub mod hll;
 pub mod kll;
 pub mod moments;
 pub mod numbers;

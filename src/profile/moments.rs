@@ -48,6 +48,12 @@ impl Moments {
         self.merge(&Moments { count: xs.len() as u64, mean, m2, min, max });
     }
 
+    /// `count` copies of one finite value.
+    pub fn repeated(x: f64, count: u64) -> Moments {
+        debug_assert!(x.is_finite());
+        Moments { count, mean: x, m2: 0.0, min: x, max: x }
+    }
+
     /// Combines another accumulator's values with these.
     pub fn merge(&mut self, other: &Moments) {
         if other.count == 0 {

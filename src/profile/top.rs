@@ -11,6 +11,7 @@ use std::sync::Arc;
 use arrow_schema::DataType;
 
 use super::distinct::PassThrough;
+use super::tally::Counted;
 
 /// Keys are value hashes already.
 type Build = std::hash::BuildHasherDefault<PassThrough>;
@@ -103,6 +104,8 @@ pub struct TopValues {
     counters: usize,
     /// Counts gathered while shrinking, kept for the next time.
     scratch: Vec<u64>,
+    /// A run's values not among the counters, kept for the next run.
+    newcomers: Vec<Counted>,
     /// A report's stated bound on undercounts, for values read back from it.
     reported_undercount: Option<u64>,
 }
@@ -129,6 +132,7 @@ impl TopValues {
             exact_limit,
             counters: counters.min(exact_limit),
             scratch: Vec::new(),
+            newcomers: Vec::new(),
             reported_undercount: None,
         }
     }
@@ -155,6 +159,14 @@ impl TopValues {
         }
         if self.summarised {
             self.shrink();
+        }
+    }
+
+    /// Starts summarised when `merged` is (see
+    /// [`super::field::FieldStats::start_past`]).
+    pub fn start_past(&mut self, merged: &TopValues) {
+        if self.counts.is_empty() && merged.summarised && merged.reported_undercount.is_none() {
+            self.summarised = true;
         }
     }
 
@@ -187,18 +199,64 @@ impl TopValues {
         }
     }
 
+    /// Adds a run's distinct values with their counts (from
+    /// [`super::tally`]); `keep(first)` gives a value the first time it is
+    /// kept. While exact, each is counted. Once summarised, the run's exact
+    /// counts are a summary of their own, merged with the counters in one
+    /// Misra–Gries step (Agarwal et al.'s merge, so the n / (k + 1) bound
+    /// holds): a value the step drops is never looked at again, which is
+    /// what makes a column of mostly distinct values cheap.
+    pub fn add_run(&mut self, run: &[Counted], keep: impl Fn(usize) -> Kept) {
+        let mut rest = run;
+        while !self.summarised {
+            let Some((c, after)) = rest.split_first() else { return };
+            self.add_count(c.hash, c.count.into(), || keep(c.first as usize));
+            rest = after;
+        }
+        let mut newcomers = std::mem::take(&mut self.newcomers);
+        newcomers.clear();
+        for c in rest {
+            self.total += u64::from(c.count);
+            match self.counts.get_mut(&c.hash) {
+                Some((count, _)) => *count += u64::from(c.count),
+                None => newcomers.push(*c),
+            }
+        }
+        let cut = if self.counts.len() + newcomers.len() > self.counters {
+            let cut = self.cut_with(newcomers.iter().map(|c| c.count.into()));
+            self.subtract(cut);
+            cut
+        } else {
+            0
+        };
+        for c in newcomers.iter().filter(|c| u64::from(c.count) > cut) {
+            self.counts.insert(c.hash, (u64::from(c.count) - cut, keep(c.first as usize)));
+        }
+        self.newcomers = newcomers;
+    }
+
     /// Misra–Gries step: subtract the (k+1)-th largest count from all, drop
     /// those at or below zero, leaving at most k counters.
     fn shrink(&mut self) {
         if self.counts.len() <= self.counters {
             return;
         }
-        // Reuse one buffer: summarised fields shrink every k new values.
+        let cut = self.cut_with(std::iter::empty());
+        self.subtract(cut);
+    }
+
+    /// The (k+1)-th largest of the counters' counts and `more`, in linear time.
+    fn cut_with(&mut self, more: impl Iterator<Item = u64>) -> u64 {
+        // Reuse one buffer: summarised fields cut once per run.
         let counts = &mut self.scratch;
         counts.clear();
         counts.extend(self.counts.values().map(|(c, _)| *c));
-        // The (k+1)-th largest count, in linear time.
+        counts.extend(more);
         let (_, &mut cut, _) = counts.select_nth_unstable_by(self.counters, |a, b| b.cmp(a));
+        cut
+    }
+
+    fn subtract(&mut self, cut: u64) {
         self.counts.retain(|_, (c, _)| *c > cut);
         self.counts.values_mut().for_each(|(c, _)| *c -= cut);
     }
@@ -219,15 +277,20 @@ impl TopValues {
 
     /// The `n` most frequent values, most frequent first (ties by value).
     pub fn top(&self, n: usize) -> Vec<TopValue> {
-        let mut all: Vec<TopValue> = self.counts.values().map(|(c, v)| TopValue { value: v.render(), count: *c }).collect();
+        let mut all: Vec<TopValue> = self.entries().map(|(value, count)| TopValue { value, count }).collect();
         all.sort_by(|a, b| b.count.cmp(&a.count).then_with(|| a.value.cmp(&b.value)));
         all.truncate(n);
         all
     }
 
-    /// Every value kept, as text, with its count (all values while exact).
+    /// Every value kept, as text, with its count: all values while exact;
+    /// once summarised, those whose count exceeds [`Self::max_undercount`],
+    /// which the summary proves more frequent than that bound. (Counters
+    /// at or below it may be leftovers of values seen a few times, and which
+    /// are left depends on the order values came in.)
     pub fn entries(&self) -> impl Iterator<Item = (String, u64)> + '_ {
-        self.counts.values().map(|(c, v)| (v.render(), *c))
+        let floor = if self.summarised { self.max_undercount() } else { 0 };
+        self.counts.values().filter(move |(c, _)| *c > floor).map(|(c, v)| (v.render(), *c))
     }
 
     /// True when counts are exact; otherwise each may be low by
@@ -313,6 +376,21 @@ mod tests {
             for (value, truth) in top.iter().zip([50_000u64, 25_000, 12_500]) {
                 assert!(value.count <= truth && truth - value.count <= bound, "{value:?} vs {truth} (bound {bound})");
             }
+        }
+    }
+
+    #[test]
+    fn a_summary_lists_only_values_proven_above_its_bound_whatever_the_order() {
+        // 50,000 values seen once each, and one seen 2,000 times.
+        let values: Vec<u64> = (0..50_000).chain(std::iter::repeat_n(7_000_000, 2_000)).collect();
+        let mut in_order = TopValues::default();
+        values.iter().for_each(|&v| add(&mut in_order, v));
+        let mut reversed = TopValues::default();
+        values.iter().rev().for_each(|&v| add(&mut reversed, v));
+        for t in [&in_order, &reversed] {
+            assert!(!t.is_exact());
+            let listed: Vec<String> = t.entries().map(|(v, _)| v).collect();
+            assert_eq!(listed, ["v7000000"]);
         }
     }
 

@@ -231,6 +231,11 @@ fn field(out: &mut String, i: usize, f: &FieldEntry) {
         if let Some(top) = &s.top {
             top_values(out, top, f.count.saturating_sub(f.nulls + f.missing));
         }
+        if let (Some(top), Some(bound)) = (&s.top, s.top_max_undercount)
+            && top.is_empty()
+        {
+            let _ = writeln!(out, "<h3>Top values</h3><p>{}</p>", escape(&super::no_value_stands_out(bound)));
+        }
         if let Some(l) = &s.lengths {
             let _ = writeln!(
                 out,

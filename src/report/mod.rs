@@ -198,6 +198,16 @@ pub struct Lengths {
 /// Top values kept in the report (the categorical histogram: these plus "other").
 pub const TOP_VALUES: usize = 20;
 
+/// What an empty list of top values from a summary means. A summary with
+/// undercount bound b lists the values whose count it proves above b; a
+/// value it does not list counted at most b, so occurs at most 2b times.
+pub fn no_value_stands_out(max_undercount: u64) -> String {
+    format!(
+        "No value stands out: none occurs more than {} times.",
+        crate::format::group_digits(max_undercount.saturating_mul(2))
+    )
+}
+
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Quantiles {
     pub p1: f64,

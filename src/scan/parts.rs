@@ -41,7 +41,8 @@ pub(super) fn scan_parts(
         if batch.is_empty() {
             break;
         }
-        let results: Vec<PartRead> = batch.into_par_iter().map(|part| read_part(part, &info, profile, stop)).collect();
+        let start = merged.for_later_part(&info);
+        let results: Vec<PartRead> = batch.into_par_iter().map(|part| read_part(part, &start, stop)).collect();
         for mut read in results {
             if let (Some(expected), Some(seam)) = (expected_start, read.part.seam())
                 && seam.start != expected
@@ -50,7 +51,7 @@ pub(super) fn scan_parts(
                 // The guessed start fell inside a record (a quoted line
                 // break in CSV): read this part again from where the part
                 // before it really ended.
-                read = read_part(again, &info, profile, stop);
+                read = read_part(again, &start, stop);
             }
             expected_start = read.part.seam().and_then(|s| s.next_record);
             bytes_done += read.part.info().bytes;
@@ -72,8 +73,9 @@ pub(super) fn scan_parts(
     Scan { info, shape: merged.finish(), coverage, sample: None, from_report: None }
 }
 
-fn read_part(mut part: Box<dyn Source>, info: &SourceInfo, profile: bool, stop: &AtomicBool) -> PartRead {
-    let mut builder = ShapeBuilder::new(info, profile);
+/// Reads one part into a builder that begins as `start`.
+fn read_part(mut part: Box<dyn Source>, start: &ShapeBuilder, stop: &AtomicBool) -> PartRead {
+    let mut builder = start.clone();
     let (error, stopped) = loop {
         if stop.load(Ordering::Relaxed) {
             break (None, true);

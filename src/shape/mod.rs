@@ -9,6 +9,7 @@
 //! missing (JSON: the key was absent; directories: the part lacks the field).
 
 mod declared;
+mod dictionary;
 mod from_arrow;
 mod from_values;
 pub mod kinds;
@@ -80,6 +81,9 @@ pub struct FieldShape {
     pub children: Vec<FieldShape>,
     /// Statistics of the values, when the scan profiles.
     pub stats: Option<Box<FieldStats>>,
+    /// Texts of a dictionary-encoded column counted but not yet observed
+    /// (see `dictionary.rs`); settled before the field is read or merged.
+    pending: Option<Box<dictionary::PendingTexts>>,
     /// The name as placed in the parent (differs from `name` only for a
     /// repeated field name: `name#2`).
     key: String,
@@ -104,6 +108,7 @@ impl FieldShape {
             examples: BTreeMap::new(),
             children: Vec::new(),
             stats: None,
+            pending: None,
             key: name.to_string(),
             index: HashMap::new(),
             first_row: u64::MAX,
@@ -210,6 +215,9 @@ impl FieldShape {
         self.first_row = self.first_row.min(other.first_row);
         if let Some(theirs) = &other.stats {
             self.stats.get_or_insert_with(Box::default).merge(theirs);
+        }
+        if let Some(counted) = &other.pending {
+            dictionary::add_counted(self, counted);
         }
         for (kind, list) in &other.examples {
             let mine = self.examples.entry(*kind).or_default();
@@ -325,6 +333,9 @@ pub struct ShapeBuilder {
     /// JSON: one builder per thread, each observing its share of every
     /// batch with the rows' own numbers, merged into `root` at the end.
     workers: Vec<ShapeBuilder>,
+    /// What a new JSON worker's tree starts as (see [`Self::for_later_part`]);
+    /// an empty tree when `None`.
+    worker_start: Option<Box<FieldShape>>,
 }
 
 impl ShapeBuilder {
@@ -340,7 +351,7 @@ impl ShapeBuilder {
             declared::seed_from_schema(&mut root, schema, info.parquet_leaves.as_deref());
             root.walk_mut(&mut |f| f.first_row = 0);
         }
-        let mut builder = ShapeBuilder { root, rows: 0, workers: Vec::new() };
+        let mut builder = ShapeBuilder { root, rows: 0, workers: Vec::new(), worker_start: None };
         builder.enforce_budget();
         builder
     }
@@ -368,7 +379,7 @@ impl ShapeBuilder {
         if profile {
             root.stats = Some(Box::default());
         }
-        ShapeBuilder { root, rows: 0, workers: Vec::new() }
+        ShapeBuilder { root, rows: 0, workers: Vec::new(), worker_start: None }
     }
 
     pub fn rows(&self) -> u64 {
@@ -435,7 +446,10 @@ impl ShapeBuilder {
                 return;
             }
             let taken = pool.lock().expect("no worker panics holding the pool").pop();
-            let mut worker = taken.unwrap_or_else(|| ShapeBuilder::empty(profile));
+            let mut worker = taken.unwrap_or_else(|| match &self.worker_start {
+                Some(start) => ShapeBuilder { root: start.as_ref().clone(), rows: 0, workers: Vec::new(), worker_start: None },
+                None => ShapeBuilder::empty(profile),
+            });
             from_values::observe_rows(&mut worker.root, &rows[..keep], first_row + start as u64);
             worker.count_rows(keep as u64);
             worker.enforce_budget();
@@ -459,10 +473,38 @@ impl ShapeBuilder {
         self.enforce_budget();
     }
 
+    /// An empty builder for a later part of the same source, whose fields
+    /// (every one seen so far) start past the exact structures this builder
+    /// has already given up (see [`FieldStats::start_past`]): merging the
+    /// part back could not make them exact again, so the part need not
+    /// build them. Its JSON workers start from the same fields.
+    pub fn for_later_part(&self, info: &SourceInfo) -> ShapeBuilder {
+        fn start_past(part: &mut FieldShape, merged: &FieldShape) {
+            if let (Some(mine), Some(theirs)) = (part.stats.as_deref_mut(), merged.stats.as_deref()) {
+                mine.start_past(theirs);
+            }
+            for theirs in &merged.children {
+                start_past(part.child_mut_named(&theirs.key, &theirs.name, theirs.role), theirs);
+            }
+        }
+        let mut part = ShapeBuilder::new(info, self.root.stats.is_some());
+        start_past(&mut part.root, &self.root);
+        part.worker_start = Some(Box::new(part.root.clone()));
+        part
+    }
+
+    /// Observes every dictionary's counted texts, so the fields hold
+    /// everything added.
+    fn settle(&mut self) {
+        self.root.walk_mut(&mut dictionary::settle);
+    }
+
     /// Merges a chunk that came after everything already added.
     pub fn merge_after(&mut self, mut later: ShapeBuilder) {
         self.absorb_workers();
         later.absorb_workers();
+        self.settle();
+        later.settle();
         let offset = self.rows;
         later.root.walk_mut(&mut |f| {
             if f.first_row != u64::MAX {
@@ -495,6 +537,7 @@ impl ShapeBuilder {
 
     pub fn finish(mut self) -> Shape {
         self.absorb_workers();
+        self.settle();
         self.root.finish(self.rows);
         Shape { rows: self.rows, fields: self.root.children }
     }

@@ -31,14 +31,19 @@ pub enum Form {
 impl StringForms {
     /// Counts the form of `s` and returns it, so callers need not classify again.
     pub fn observe(&mut self, s: &str) -> Option<Form> {
+        self.observe_count(s, 1)
+    }
+
+    /// Counts the form of `count` strings equal to `s`.
+    pub fn observe_count(&mut self, s: &str, count: u64) -> Option<Form> {
         let form = classify(s);
         match form {
-            Some(Form::Timestamp) => self.timestamp += 1,
-            Some(Form::TimestampNoZone) => self.timestamp_no_zone += 1,
-            Some(Form::Date) => self.date += 1,
-            Some(Form::Uuid) => self.uuid += 1,
-            Some(Form::Integer) => self.integer += 1,
-            Some(Form::Decimal) => self.decimal += 1,
+            Some(Form::Timestamp) => self.timestamp += count,
+            Some(Form::TimestampNoZone) => self.timestamp_no_zone += count,
+            Some(Form::Date) => self.date += count,
+            Some(Form::Uuid) => self.uuid += count,
+            Some(Form::Integer) => self.integer += count,
+            Some(Form::Decimal) => self.decimal += count,
             None => {}
         }
         form

@@ -288,7 +288,7 @@ impl ParquetSource {
             let options = ArrowReaderOptions::new().with_schema(schema);
             ArrowReaderMetadata::try_new(self.metadata.metadata().clone(), options).map_err(|e| e.to_string())?
         } else {
-            self.metadata.clone()
+            keeping_dictionaries(&self.metadata, group).unwrap_or_else(|| self.metadata.clone())
         };
         let total = self.metadata.metadata().row_group(group).num_rows().max(0) as usize;
         let (from, to) = self.rows_in_group.map_or((0, total), |(from, to)| (from as usize, to as usize));
@@ -316,6 +316,82 @@ impl ParquetSource {
             Err(panic) => Err(panic),
         }
     }
+}
+
+/// The reader's metadata for row group `group` with each text column whose
+/// chunk there is dictionary-encoded throughout read as an Arrow dictionary,
+/// or `None` when no column is. The profile then sees each distinct text
+/// once per chunk with its count (see `shape/dictionary.rs`) instead of
+/// every value copied out of the dictionary. Chunks with plain pages are read
+/// plainly: the reader would hash every value to build a dictionary.
+fn keeping_dictionaries(metadata: &ArrowReaderMetadata, group: usize) -> Option<ArrowReaderMetadata> {
+    let chunks = metadata.metadata().row_group(group).columns();
+    let mut column = 0;
+    let mut kept = false;
+    let fields: Vec<Field> = metadata
+        .schema()
+        .fields()
+        .iter()
+        .map(|f| hint_dictionaries(f, chunks, &mut column, &mut kept))
+        .collect();
+    // Arrow leaves follow the Parquet columns one for one, in order; if they
+    // do not, read as declared.
+    if !kept || column != chunks.len() {
+        return None;
+    }
+    let schema = Schema::new_with_metadata(fields, metadata.schema().metadata().clone());
+    let options = ArrowReaderOptions::new().with_schema(Arc::new(schema));
+    ArrowReaderMetadata::try_new(metadata.metadata().clone(), options).ok()
+}
+
+/// `field` with its `Utf8` leaves made dictionaries where their chunk (the
+/// `column`-th, counting leaves in order) has only dictionary-encoded pages.
+fn hint_dictionaries(
+    field: &Field,
+    chunks: &[parquet::file::metadata::ColumnChunkMetaData],
+    column: &mut usize,
+    kept: &mut bool,
+) -> Field {
+    let data_type = match field.data_type() {
+        DataType::Struct(fields) => {
+            DataType::Struct(fields.iter().map(|f| hint_dictionaries(f, chunks, column, kept)).collect())
+        }
+        DataType::List(f) => DataType::List(Arc::new(hint_dictionaries(f, chunks, column, kept))),
+        DataType::LargeList(f) => DataType::LargeList(Arc::new(hint_dictionaries(f, chunks, column, kept))),
+        DataType::FixedSizeList(f, n) => DataType::FixedSizeList(Arc::new(hint_dictionaries(f, chunks, column, kept)), *n),
+        DataType::Map(f, sorted) => DataType::Map(Arc::new(hint_dictionaries(f, chunks, column, kept)), *sorted),
+        leaf => {
+            let chunk = chunks.get(*column);
+            *column += 1;
+            match leaf {
+                DataType::Utf8 if chunk.is_some_and(dictionary_throughout) => {
+                    *kept = true;
+                    DataType::Dictionary(Box::new(DataType::Int32), Box::new(DataType::Utf8))
+                }
+                other => other.clone(),
+            }
+        }
+    };
+    field.clone().with_data_type(data_type)
+}
+
+/// Every data page of the chunk is dictionary-encoded (as the page encoding
+/// statistics in the footer say; without them, assume not).
+fn dictionary_throughout(chunk: &parquet::file::metadata::ColumnChunkMetaData) -> bool {
+    use parquet::basic::{Encoding, PageType};
+    let is_dictionary = |e: Encoding| matches!(e, Encoding::PLAIN_DICTIONARY | Encoding::RLE_DICTIONARY);
+    if chunk.dictionary_page_offset().is_none() {
+        return false;
+    }
+    if let Some(mask) = chunk.page_encoding_stats_mask() {
+        return mask.encodings().all(is_dictionary);
+    }
+    chunk.page_encoding_stats().is_some_and(|stats| {
+        stats
+            .iter()
+            .filter(|s| matches!(s.page_type, PageType::DATA_PAGE | PageType::DATA_PAGE_V2))
+            .all(|s| is_dictionary(s.encoding))
+    })
 }
 
 fn is_offset_overflow(message: &str) -> bool {

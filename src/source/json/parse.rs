@@ -24,7 +24,11 @@ type Result<T> = std::result::Result<T, SyntaxError>;
 
 /// Parses exactly one JSON value from `bytes`, allowing surrounding whitespace.
 pub fn parse_value(bytes: &[u8]) -> Result<Value> {
-    let mut p = Parser { bytes, pos: 0 };
+    // Valid UTF-8 throughout (nearly every record) is checked once here, so
+    // strings are sliced from it unchecked; otherwise each string's run is
+    // checked, which places the error.
+    let text = std::str::from_utf8(bytes).ok();
+    let mut p = Parser { bytes, text, pos: 0 };
     p.skip_ws();
     if p.pos == bytes.len() {
         return Err(p.error("expected a JSON value, found end of input"));
@@ -44,6 +48,8 @@ pub fn is_json_ws(b: u8) -> bool {
 
 struct Parser<'a> {
     bytes: &'a [u8],
+    /// `bytes` as text, when they are valid UTF-8.
+    text: Option<&'a str>,
     pos: usize,
 }
 
@@ -217,7 +223,10 @@ impl<'a> Parser<'a> {
             self.skip_digits();
         }
         // The grammar above admits only ASCII, so this cannot fail.
-        let text = std::str::from_utf8(&b[start..self.pos]).expect("number text is ASCII");
+        let text = match self.text.and_then(|t| t.get(start..self.pos)) {
+            Some(text) => text,
+            None => std::str::from_utf8(&b[start..self.pos]).expect("number text is ASCII"),
+        };
         if integral {
             if let Ok(i) = text.parse::<i64>() {
                 return Ok(Value::Int(i));
@@ -250,13 +259,23 @@ impl<'a> Parser<'a> {
             let stop = memchr::memchr2(b'"', b'\\', rest).unwrap_or(rest.len());
             let stop = rest[..stop].iter().position(|&b| b < 0x20).unwrap_or(stop);
             self.pos = run_start + stop;
-            let run = &self.bytes[run_start..self.pos];
-            match std::str::from_utf8(run) {
-                Ok(s) => out.push_str(s),
-                Err(e) => {
-                    return Err(self.error_at(run_start + e.valid_up_to(), "invalid UTF-8 in string"));
-                }
+            // A run starts and ends at ASCII bytes (quotes, backslashes,
+            // escapes), so slicing the checked text there cannot fail.
+            let text = match self.text.and_then(|t| t.get(run_start..self.pos)) {
+                Some(s) => s,
+                None => match std::str::from_utf8(&self.bytes[run_start..self.pos]) {
+                    Ok(s) => s,
+                    Err(e) => {
+                        return Err(self.error_at(run_start + e.valid_up_to(), "invalid UTF-8 in string"));
+                    }
+                },
+            };
+            // Most strings are one run: take it at its exact size.
+            if out.is_empty() && self.peek() == Some(b'"') {
+                self.pos += 1;
+                return Ok(text.to_owned());
             }
+            out.push_str(text);
             match self.peek() {
                 Some(b'"') => {
                     self.pos += 1;
