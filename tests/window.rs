@@ -234,6 +234,10 @@ fn long_record_types_are_laid_out_a_screenful_at_a_time() {
     let last = "  group_39: Group39";
     h.get_by_label_contains(first);
     assert!(h.query_by_label_contains(last).is_none(), "the root's last member is far below the view");
+    // The lines laid out reach the bottom of the 720-point window: the rows
+    // the scroll area measures are the rows drawn.
+    let lowest = h.query_all_by_label_contains(": Long").map(|line| line.rect().bottom()).fold(0.0f32, f32::max);
+    assert!(lowest >= 700.0, "the code stops {} points above the window's bottom", 720.0 - lowest);
     h.hover_at(egui::pos2(800.0, 500.0));
     for _ in 0..60 {
         h.event(egui::Event::MouseWheel {

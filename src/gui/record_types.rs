@@ -172,21 +172,26 @@ fn code_view(ui: &mut egui::Ui, lines: &Lines) {
     let font = egui::TextStyle::Monospace.resolve(ui.style());
     let row_height = ui.ctx().fonts_mut(|f| f.row_height(&font));
     let char_width = ui.ctx().fonts_mut(|f| f.glyph_width(&font, 'M'));
-    egui::ScrollArea::both().auto_shrink([false, false]).id_salt("record_types_code").show_rows(
-        ui,
-        row_height,
-        lines.len(),
-        |ui, in_view| {
-            ui.spacing_mut().item_spacing.y = 0.0;
-            // The widest line sets the width, seen or not, so the view
-            // does not widen and narrow while it scrolls.
-            ui.set_min_width(char_width * lines.widest as f32);
-            for index in in_view {
-                let job = lines.line(index, ui.visuals(), &font);
-                ui.add(egui::Label::new(job).selectable(true).extend());
-            }
-        },
-    );
+    // Lines sit edge to edge; `show_rows` reads the spacing before laying
+    // out, so it is set before the call (set inside, the rows measured would
+    // be taller than the rows drawn, and the view would end short).
+    ui.scope(|ui| {
+        ui.spacing_mut().item_spacing.y = 0.0;
+        egui::ScrollArea::both().auto_shrink([false, false]).id_salt("record_types_code").show_rows(
+            ui,
+            row_height,
+            lines.len(),
+            |ui, in_view| {
+                // The widest line sets the width, seen or not, so the view
+                // does not widen and narrow while it scrolls.
+                ui.set_min_width(char_width * lines.widest as f32);
+                for index in in_view {
+                    let job = lines.line(index, ui.visuals(), &font);
+                    ui.add(egui::Label::new(job).selectable(true).extend());
+                }
+            },
+        );
+    });
 }
 
 /// The definition language a target's code is read back in, if any.

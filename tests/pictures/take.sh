@@ -26,6 +26,7 @@ shot() {
 
 shot field-sheet sample-data/deliveries.parquet --field parcel.weight_kg
 shot field-sheet-text sample-data/deliveries.jsonl --field zip_code
+shot rows sample-data/deliveries.parquet --area rows
 shot findings sample-data/deliveries.parquet --area findings
 shot record-types sample-data/deliveries.parquet --area record-types
 shot compare sample-data/deliveries.parquet --compare sample-data/later/deliveries.parquet
