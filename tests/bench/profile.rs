@@ -56,11 +56,15 @@ fn main() {
     let p = parquet.to_str().unwrap();
     let mut rows = 0;
     let ours = time_runs(3, || rows = profile(&parquet));
+    // Our own decode floor: every row read and its kinds counted, no statistics.
+    let shape_only = ScanOptions { skip_statistics: true, ..ScanOptions::default() };
+    let reading = time_runs(3, || rows = common::scan(&parquet, shape_only));
     let polars = seconds(&python(PEERS, &["polars-parquet", p]));
     let floor = seconds(&python(PEERS, &["read-table", p]));
     let mb = std::fs::metadata(&parquet).unwrap().len() as f64 / 1e6;
     println!("Parquet full profile, {rows} rows, 15 columns, {mb:.0} MB (median of 3 runs each):");
     println!("  plumbline (every statistic, every leaf): {:>7.2} s", ours.as_secs_f64());
+    println!("  plumbline reading every row, no statistics: {:>4.2} s", reading.as_secs_f64());
     println!("  polars read_parquet + statistics:        {:>7.2} s", polars.as_secs_f64());
     println!("  pyarrow read_table (decode only):        {:>7.2} s", floor.as_secs_f64());
     println!("  ratio plumbline / polars:     {:.2}", ours.as_secs_f64() / polars.as_secs_f64());
