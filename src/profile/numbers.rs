@@ -189,7 +189,8 @@ impl NumberStats {
     }
 
     /// Starts past the exact sample and the few-values table when `merged`
-    /// has (see [`super::field::FieldStats::start_past`]).
+    /// has (see [`super::field::FieldStats::start_past`]); the sketch counts
+    /// its values as earlier ones.
     pub fn start_past(&mut self, merged: &NumberStats) {
         if self.moments.count() > 0 || merged.reported.is_some() {
             return;
@@ -200,6 +201,7 @@ impl NumberStats {
         if merged.few.is_none() {
             self.few = None;
         }
+        self.sketch.start_past(&merged.sketch);
     }
 
     /// Adds `count` copies of `x`; the same statistics as adding them one at
