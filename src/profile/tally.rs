@@ -26,11 +26,17 @@ pub struct Counted {
 pub const RUN: usize = 8192;
 /// An empty slot.
 const EMPTY: u16 = u16::MAX;
+/// Table slots per value counted (see [`Table`]).
+const SLOTS_PER_VALUE: usize = 8;
 
 /// Open addressing with linear probing over the hashes' low bits (they are
 /// XXH3 outputs, already well mixed). A slot holds the index of its entry in
-/// `counted`: 16,384 two-byte slots stay in the first-level cache, so a run
-/// of distinct values costs a probe there and an append.
+/// `counted`. Eight slots a value (65,536 two-byte slots for a full run, in
+/// the second-level cache) keep the table at most one-eighth full, so a new
+/// value's first probe nearly always finds an empty slot: the branch is
+/// predicted and the entry it would compare with is not loaded. At two
+/// slots a value the table took 8 % more CPU over a whole profile (perf,
+/// 10 M-row Parquet; four a value: 4 % more).
 #[derive(Default)]
 struct Table {
     slots: Vec<u16>,
@@ -44,7 +50,7 @@ impl Table {
     fn count(&mut self, hashes: &[u64], offset: usize) {
         debug_assert!(hashes.len() <= RUN);
         assert!(offset + hashes.len() <= u32::MAX as usize, "an Arrow array holds fewer than 2^32 values");
-        let size = (2 * hashes.len()).next_power_of_two().max(64);
+        let size = (SLOTS_PER_VALUE * hashes.len()).next_power_of_two().max(64);
         self.slots.clear();
         self.slots.resize(size, EMPTY);
         self.counted.clear();
