@@ -213,26 +213,49 @@ impl TopValues {
             self.add_count(c.hash, c.count.into(), || keep(c.first as usize));
             rest = after;
         }
+        // Newcomers seen once are only counted: in a column of mostly
+        // distinct values they are nearly all of the run, and a cut of one
+        // or more (below) drops them all.
         let mut newcomers = std::mem::take(&mut self.newcomers);
         newcomers.clear();
+        let mut singles = 0;
         for c in rest {
             self.total += u64::from(c.count);
             match self.counts.get_mut(&c.hash) {
                 Some((count, _)) => *count += u64::from(c.count),
+                None if c.count == 1 => singles += 1,
                 None => newcomers.push(*c),
             }
         }
-        let cut = if self.counts.len() + newcomers.len() > self.counters {
-            let cut = self.cut_with(newcomers.iter().map(|c| c.count.into()));
+        if self.counts.len() + newcomers.len() + singles > self.counters {
+            let cut = self.cut_past_singles(&newcomers);
             self.subtract(cut);
-            cut
+            for c in newcomers.iter().filter(|c| u64::from(c.count) > cut) {
+                self.counts.insert(c.hash, (u64::from(c.count) - cut, keep(c.first as usize)));
+            }
         } else {
-            0
-        };
-        for c in newcomers.iter().filter(|c| u64::from(c.count) > cut) {
-            self.counts.insert(c.hash, (u64::from(c.count) - cut, keep(c.first as usize)));
+            // Everything fits: no cut, every newcomer is kept.
+            let singles: Vec<Counted> =
+                rest.iter().filter(|c| c.count == 1 && !self.counts.contains_key(&c.hash)).copied().collect();
+            for c in newcomers.iter().chain(&singles) {
+                self.counts.insert(c.hash, (u64::from(c.count), keep(c.first as usize)));
+            }
         }
         self.newcomers = newcomers;
+    }
+
+    /// The cut of a Misra–Gries step over the counters, `newcomers` (each
+    /// seen more than once) and more than enough newcomers seen once to
+    /// make the (k+1)-th count exist. When at most k counts exceed one, the
+    /// (k+1)-th largest is one, found without selecting.
+    fn cut_past_singles(&mut self, newcomers: &[Counted]) -> u64 {
+        let above_one = self.counts.values().filter(|(c, _)| *c > 1).count() + newcomers.len();
+        if above_one <= self.counters {
+            return 1;
+        }
+        // More than k counts above one: the (k+1)-th largest is among them,
+        // whatever the ones are.
+        self.cut_with(newcomers.iter().map(|c| c.count.into()))
     }
 
     /// Misra–Gries step: subtract the (k+1)-th largest count from all, drop
@@ -408,6 +431,54 @@ mod tests {
         late.set_limits(100, 100);
         assert!(!late.is_exact(), "past the new limit: summarised at once");
         assert!(late.entries().count() <= 100);
+    }
+
+    /// One Misra–Gries merge as Agarwal et al. state it: add the run's
+    /// counts, subtract the (k+1)-th largest count from all, keep those
+    /// above zero.
+    fn textbook_step(counts: &mut HashMap<u64, u64>, run: &[Counted], k: usize) {
+        for c in run {
+            *counts.entry(c.hash).or_insert(0) += u64::from(c.count);
+        }
+        if counts.len() > k {
+            let mut all: Vec<u64> = counts.values().copied().collect();
+            all.sort_unstable_by(|a, b| b.cmp(a));
+            let cut = all[k];
+            counts.retain(|_, c| *c > cut);
+            counts.values_mut().for_each(|c| *c -= cut);
+        }
+    }
+
+    #[test]
+    fn merging_runs_equals_the_textbook_step_for_every_kind_of_cut() {
+        let k = 20;
+        let mut t = TopValues::with_limits(k, k);
+        (0..=k as u64).for_each(|v| add(&mut t, v));
+        assert!(!t.is_exact());
+        let mut textbook: HashMap<u64, u64> = t.counts.iter().map(|(h, (c, _))| (*h, *c)).collect();
+        let mut seed = 0x2545_F491_4F6C_DD1Du64;
+        let mut random = move |below: u64| {
+            seed ^= seed << 13;
+            seed ^= seed >> 7;
+            seed ^= seed << 17;
+            seed % below
+        };
+        let mut fresh = 1_000u64;
+        for round in 0..300 {
+            // Runs of mostly distinct values (cut of one), of a few heavy
+            // values (cut above one), and of a handful that fit (no cut),
+            // always with some values the counters hold.
+            let mut run: Vec<Counted> = (0..3).map(|h| Counted { hash: h, count: 1 + random(4) as u32, first: 0 }).collect();
+            let (distinct, most) = [(200, 1), (2, 1), (40, 30), (3, 2)][round % 4];
+            for _ in 0..distinct {
+                fresh += 1;
+                run.push(Counted { hash: fresh, count: 1 + random(most) as u32, first: 0 });
+            }
+            t.add_run(&run, |_| Kept::Int(0));
+            textbook_step(&mut textbook, &run, k);
+            let mine: HashMap<u64, u64> = t.counts.iter().map(|(h, (c, _))| (*h, *c)).collect();
+            assert_eq!(mine, textbook, "round {round}");
+        }
     }
 
 }
