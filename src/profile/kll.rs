@@ -96,11 +96,17 @@ impl Kll {
     /// Adds every value of `xs` (none NaN), a run at a time: the same
     /// sketch as adding them one by one.
     pub fn add_slice(&mut self, xs: &[f64]) {
-        for &x in xs {
-            debug_assert!(!x.is_nan());
-            self.min = self.min.min(x);
-            self.max = self.max.max(x);
-        }
+        let lo = xs.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = xs.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        self.add_slice_within(xs, lo, hi);
+    }
+
+    /// [`Self::add_slice`] for a caller that knows the least and greatest
+    /// of `xs` (or of a run it is part of, all of which this sketch holds).
+    pub fn add_slice_within(&mut self, xs: &[f64], lo: f64, hi: f64) {
+        debug_assert!(xs.iter().all(|x| !x.is_nan() && lo <= *x && *x <= hi));
+        self.min = self.min.min(lo);
+        self.max = self.max.max(hi);
         let mut rest = xs;
         while !rest.is_empty() {
             if self.block.is_empty() {

@@ -261,11 +261,11 @@ impl NumberStats {
 
     /// Adds a run of values; the same statistics as adding them one at a time.
     pub fn add_slice(&mut self, xs: &[f64]) {
-        if !xs.iter().all(|x| x.is_finite()) {
+        let Some(run) = Moments::of_run(xs).filter(Moments::all_finite) else {
             xs.iter().for_each(|&x| self.add(x));
             return;
-        }
-        self.moments.add_slice(xs);
+        };
+        self.moments.merge(&run);
         let few_limit = self.few_limit();
         let for_sketch = match &mut self.few {
             Some(few) => match xs.iter().position(|&x| !few.add(x, few_limit)) {
@@ -277,7 +277,12 @@ impl NumberStats {
             },
             None => xs,
         };
-        self.sketch.add_slice(for_sketch);
+        if !for_sketch.is_empty() {
+            // Values before `for_sketch` reached the sketch through the
+            // few-values table, so the run's extremes are the sketch's too.
+            let (lo, hi) = (run.min().unwrap_or(f64::NAN), run.max().unwrap_or(f64::NAN));
+            self.sketch.add_slice_within(for_sketch, lo, hi);
+        }
         self.fractional = self.fractional || !xs.iter().all(|&x| is_whole(x));
         if let Some(values) = &mut self.exact {
             if values.len() + xs.len() <= self.exact_limit {
