@@ -123,6 +123,21 @@ impl Distinct {
         }
     }
 
+    /// Adds values by their hashes, as [`Self::add_hash`] does one at a time.
+    pub fn add_hashes(&mut self, hashes: impl IntoIterator<Item = u64>) {
+        let mut hashes = hashes.into_iter();
+        while let State::Exact(set) = &mut self.state {
+            let Some(hash) = hashes.next() else { return };
+            set.insert(hash);
+            if set.len() > self.budget {
+                self.to_sketch();
+            }
+        }
+        if let State::Sketch(sketch) = &mut self.state {
+            sketch.insert_all(hashes);
+        }
+    }
+
     fn to_sketch(&mut self) {
         if let State::Exact(set) = &self.state {
             let mut sketch = Box::<Sketch>::default();
@@ -194,6 +209,23 @@ mod tests {
         let c = d.count();
         assert!(!c.exact);
         assert!((c.value as f64 - 5000.0).abs() < 5000.0 * 3.0 * standard_error(), "{c:?}");
+    }
+
+    #[test]
+    fn adding_hashes_in_bulk_counts_as_one_at_a_time() {
+        // Across the switch to the sketch, and on past the sketch's own
+        // switch to its dense registers.
+        let hashes: Vec<u64> = (0..150_000u64).map(|i| hash_u64(i % 100_000)).collect();
+        let (mut one_by_one, mut bulk) = (Distinct::with_budget(1000), Distinct::with_budget(1000));
+        hashes.iter().for_each(|&h| one_by_one.add_hash(h));
+        for run in hashes.chunks(7_000) {
+            bulk.add_hashes(run.iter().copied());
+        }
+        assert!(!bulk.count().exact);
+        assert_eq!(bulk.count(), one_by_one.count());
+        let mut small = Distinct::with_budget(1000);
+        small.add_hashes([5, 5, 6]);
+        assert_eq!(small.count(), DistinctCount { value: 2, exact: true, standard_error: 0.0 });
     }
 
     #[test]

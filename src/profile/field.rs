@@ -115,7 +115,7 @@ impl FieldStats {
         mut also: impl FnMut(&mut Self, Range<usize>, &[Counted]),
     ) {
         tally::each_run(hashes, |piece, run| {
-            run.iter().for_each(|c| self.distinct.add_hash(c.hash));
+            self.distinct.add_hashes(run.iter().map(|c| c.hash));
             self.top.add_run(run, |first| shown(keep(first)));
             also(self, piece, run);
         });

@@ -84,6 +84,20 @@ impl Sketch {
         }
     }
 
+    /// Inserts every hash: [`Self::insert`] with the choice of path made
+    /// once (a call per value was a tenth of an integer column's profile).
+    pub fn insert_all(&mut self, hashes: impl Iterator<Item = u64>) {
+        match &mut self.front {
+            Some(front) => {
+                for hash in hashes {
+                    let (index, rho) = register_of(hash);
+                    front[index] = front[index].max(rho);
+                }
+            }
+            None => hashes.for_each(|hash| self.insert(hash)),
+        }
+    }
+
     /// Starts the front when the crate is surely dense.
     pub fn use_front_once_dense(&mut self) {
         if self.front.is_none() && self.estimator.as_ref().clone().count() > DENSE_FOR_SURE {
@@ -138,7 +152,7 @@ mod tests {
         hashes[..100_000].iter().for_each(|&h| fronted.insert(h));
         fronted.use_front_once_dense();
         assert!(fronted.front.is_some());
-        hashes[100_000..].iter().for_each(|&h| fronted.insert(h));
+        fronted.insert_all(hashes[100_000..].iter().copied());
         assert_eq!(fronted.count(), plain.count());
         // Merged halves, each fronted, agree too.
         let (mut a, mut b) = (Sketch::default(), Sketch::default());
