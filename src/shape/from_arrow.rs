@@ -381,11 +381,24 @@ where
     if let Some(stats) = node.stats.as_deref_mut() {
         let shown_as = Arc::new(array.data_type().clone());
         let raws: Vec<i128> = positions(present, a.len()).map(|i| a.values()[i].into()).collect();
-        let numbers: Vec<f64> = raws.iter().map(|&raw| raw as f64 / divisor).collect();
-        let hashes: Vec<u64> = raws.iter().map(|raw| hash::other(&raw.to_le_bytes())).collect();
+        let mut numbers = as_f64s(&raws);
+        numbers.iter_mut().for_each(|x| *x /= divisor);
+        let hashes: Vec<u64> = raws.iter().map(|&raw| hash::decimal(raw)).collect();
         stats.add_numeric_scalars(&hashes, &numbers, |i| Kept::Raw { raw: raws[i], shown_as: shown_as.clone() });
     }
     node.kinds.add(Kind::Decimal, n);
+}
+
+/// Integers as the nearest f64s, through i64 when every one fits it (the
+/// same rounding): i128 to f64 is a library call, a tenth of a decimal
+/// column's profile. The choice is made once per run; made per value, the
+/// compiler folds both ways back into the library call.
+fn as_f64s(values: &[i128]) -> Vec<f64> {
+    if values.iter().all(|&v| v as i64 as i128 == v) {
+        values.iter().map(|&v| v as i64 as f64).collect()
+    } else {
+        values.iter().map(|&v| v as f64).collect()
+    }
 }
 
 /// A list's elements: the (offset, length) ranges of its present values.
@@ -419,12 +432,7 @@ where
     };
     let (lo, hi) = present_values.iter().fold((i128::MAX, i128::MIN), |(lo, hi), &v| (lo.min(v), hi.max(v)));
     if let Some(stats) = node.stats.as_deref_mut() {
-        // Through i64 where the run fits it: i128 to f64 is a library call.
-        let numbers: Vec<f64> = if i64::try_from(lo).is_ok() && i64::try_from(hi).is_ok() {
-            present_values.iter().map(|&v| v as i64 as f64).collect()
-        } else {
-            present_values.iter().map(|&v| v as f64).collect()
-        };
+        let numbers = as_f64s(&present_values);
         let hashes: Vec<u64> = present_values.iter().map(|&v| hash::int(v)).collect();
         stats.add_numeric_scalars(&hashes, &numbers, |j| Kept::Int(present_values[j]));
     }
@@ -462,6 +470,16 @@ fn ranges_mask(len: usize, ranges: impl Iterator<Item = (usize, usize)>) -> Bool
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn raw_integers_round_to_the_same_f64_either_way() {
+        let fit = [0, -1, (1 << 53) + 1, -(1 << 53) - 1, i64::MAX as i128, i64::MIN as i128];
+        let wide = [i64::MAX as i128 + 1, i64::MIN as i128 - 1, i128::MAX, i128::MIN];
+        for run in [&fit[..], &wide[..], &[&fit[..], &wide[..]].concat()] {
+            let expected: Vec<u64> = run.iter().map(|&v| (v as f64).to_bits()).collect();
+            assert_eq!(as_f64s(run).iter().map(|x| x.to_bits()).collect::<Vec<_>>(), expected, "{run:?}");
+        }
+    }
 
     #[test]
     fn ranges_mask_sets_exactly_the_ranges_in_any_order() {
