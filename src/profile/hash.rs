@@ -13,10 +13,7 @@ const DECIMAL: u64 = 5;
 /// An integer, hashed by value (by its 8 bytes when it fits 64 bits, which
 /// XXH3 hashes several times faster than 16).
 pub fn int(v: i128) -> u64 {
-    match i64::try_from(v) {
-        Ok(narrow) => xxh3_64_with_seed(&narrow.to_le_bytes(), NUMBER),
-        Err(_) => xxh3_64_with_seed(&v.to_le_bytes(), NUMBER),
-    }
+    integer(v, NUMBER)
 }
 
 /// A float: integral values hash as the integer; -0.0 as 0.
@@ -30,12 +27,17 @@ pub fn float(v: f64) -> u64 {
     xxh3_64_with_seed(&v.to_bits().to_le_bytes(), NUMBER)
 }
 
-/// A decimal's raw integer (the value times 10^scale), by its 8 bytes when
-/// it fits 64 bits as [`int`] does.
+/// A decimal's raw integer (the value times 10^scale), hashed as [`int`]
+/// hashes an integer, under its own tag.
 pub fn decimal(raw: i128) -> u64 {
-    match i64::try_from(raw) {
-        Ok(narrow) => xxh3_64_with_seed(&narrow.to_le_bytes(), DECIMAL),
-        Err(_) => xxh3_64_with_seed(&raw.to_le_bytes(), DECIMAL),
+    integer(raw, DECIMAL)
+}
+
+/// An integer by its 8 bytes when it fits 64 bits, else by its 16.
+fn integer(v: i128, tag: u64) -> u64 {
+    match i64::try_from(v) {
+        Ok(narrow) => xxh3_64_with_seed(&narrow.to_le_bytes(), tag),
+        Err(_) => xxh3_64_with_seed(&v.to_le_bytes(), tag),
     }
 }
 

@@ -66,21 +66,12 @@ impl Moments {
         self.max = self.max.max(x);
     }
 
-    /// Adds a run of finite values: the run's own mean (about its first
-    /// value, so large offsets do not cost digits) and sum of squared
-    /// deviations by two passes, combined with these by Chan et al.'s
-    /// formula — as accurate as one at a time, without a division per value.
-    pub fn add_slice(&mut self, xs: &[f64]) {
-        let run = Moments::of_run(xs);
-        debug_assert!(run.is_none_or(|r| r.all_finite()));
-        if let Some(run) = run {
-            self.merge(&run);
-        }
-    }
-
-    /// The moments of a run by the two passes of [`Self::add_slice`] (none
-    /// for an empty run). A NaN or infinite value shows in the result:
-    /// check [`Self::all_finite`] before using it.
+    /// The moments of a run (none for an empty run): the run's own mean
+    /// (about its first value, so large offsets do not cost digits) and sum
+    /// of squared deviations by two passes, to be combined with others by
+    /// Chan et al.'s formula ([`Self::merge`]) — as accurate as one at a
+    /// time, without a division per value. A NaN or infinite value shows in
+    /// the result: check [`Self::all_finite`] before using it.
     pub fn of_run(xs: &[f64]) -> Option<Moments> {
         let &shift = xs.first()?;
         // One pass for the extremes and the shifted sum. Comparisons skip a
@@ -224,7 +215,7 @@ mod tests {
             let values = numacc(base);
             // One value at a time (JSON, CSV) and in runs (Arrow arrays).
             let mut runs = Moments::default();
-            values.chunks(300).for_each(|c| runs.add_slice(c));
+            values.chunks(300).for_each(|c| runs.merge(&Moments::of_run(c).unwrap()));
             for (how, m) in [("one at a time", of(&values)), ("in runs", runs)] {
                 let mean_digits = digits(m.mean().unwrap(), base + 0.2);
                 let sd_digits = digits(m.std().unwrap(), 0.1);
